@@ -1,2 +1,33 @@
-//! Placeholder, replaced by the crate's real module tree.
+//! Deterministic bearing-vibration simulator and demo-route generator for Spallcast.
+//!
+//! [`simulate`] synthesises one acceleration reading (in g) of a machine with a rolling-element
+//! bearing in a given [`Condition`]: machine background (1x, 2x, noise-excited structural modes,
+//! sensor noise) plus, for a defect, a train of impacts at the defect frequency that ring the
+//! bearing and ultrasonic resonances, shaped stage by stage after the four-stage model.
+//! [`Progression`] maps days since fault onset, lubrication and speed to a stage and severity.
+//! [`generate_demo_routes`] turns the invented demo plant (`demo-plant/`) into 18 monthly route
+//! folders that Spallcast imports.
+//!
+//! Conventions: frequencies in Hz, acceleration in g, bearing factors in orders of shaft speed
+//! with BSF in the 1x ball-spin convention; a rolling-element defect strikes at 2×BSF.
+//!
+//! Everything is deterministic from the seed: the same inputs give the same bytes.
 #![forbid(unsafe_code)]
+
+mod demo;
+mod error;
+mod model;
+mod progression;
+mod signal;
+
+pub use demo::{
+    BAD_RECORDING_SAMPLES, DemoSummary, PLANT_TOML, SCENARIO_TOML, TruthRow, demo_dir_default,
+    demo_truth_from_str, generate_demo_routes, generate_demo_routes_from_str,
+};
+pub use error::SimError;
+pub use model::{
+    BearingFactors, Condition, FaultKind, Lubrication, MachineParams, Resonance, Stage,
+    StructuralMode,
+};
+pub use progression::{GREASE_STAGE_DAYS, OIL_LIFE_FACTOR, Progression, REFERENCE_RPM};
+pub use signal::{BANDWIDTH_FRACTION, simulate};
