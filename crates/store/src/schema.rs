@@ -1,0 +1,448 @@
+//! Schema, migrations and opening a store.
+//!
+//! Migrations are numbered from 1 and keyed on `PRAGMA user_version`. Each runs in one transaction
+//! together with the update of `user_version`, so a crash mid-migration leaves the previous version.
+
+use std::path::{Path, PathBuf};
+
+use rusqlite::{Connection, OpenFlags};
+
+use crate::error::{Result, StoreError, is_busy, is_not_a_database};
+use crate::{BUSY_TIMEOUT, Store};
+
+/// The schema version this build writes. A database with a higher `user_version` is refused.
+pub const SCHEMA_VERSION: i64 = MIGRATIONS.len() as i64;
+
+/// Migration `i` brings the schema from version `i` to `i + 1`.
+const MIGRATIONS: &[&str] = &[
+    // 1: plant hierarchy, readings and their analysis.
+    r"
+CREATE TABLE site (
+    id INTEGER PRIMARY KEY CHECK (id = 1),
+    name TEXT NOT NULL,
+    timezone_offset TEXT NOT NULL
+);
+CREATE TABLE area (
+    id INTEGER PRIMARY KEY,
+    name TEXT NOT NULL UNIQUE,
+    sort_order INTEGER NOT NULL DEFAULT 0
+);
+CREATE TABLE bearing_type (
+    id INTEGER PRIMARY KEY,
+    designation TEXT NOT NULL UNIQUE,
+    kind TEXT NOT NULL,
+    rolling_elements INTEGER,
+    element_diameter_mm REAL,
+    pitch_diameter_mm REAL,
+    contact_angle_deg REAL,
+    ftf REAL, bsf REAL, bpfo REAL, bpfi REAL
+);
+CREATE TABLE machine (
+    id INTEGER PRIMARY KEY,
+    area_id INTEGER NOT NULL REFERENCES area(id) ON DELETE CASCADE,
+    tag TEXT NOT NULL UNIQUE,
+    name TEXT NOT NULL,
+    kind TEXT NOT NULL,
+    nominal_rpm REAL NOT NULL,
+    iso_group INTEGER NOT NULL CHECK (iso_group IN (1, 2)),
+    iso_support TEXT NOT NULL CHECK (iso_support IN ('rigid', 'flexible')),
+    sort_order INTEGER NOT NULL DEFAULT 0
+);
+CREATE INDEX machine_area ON machine(area_id);
+CREATE TABLE bearing_position (
+    id INTEGER PRIMARY KEY,
+    machine_id INTEGER NOT NULL REFERENCES machine(id) ON DELETE CASCADE,
+    position TEXT NOT NULL,
+    description TEXT NOT NULL DEFAULT '',
+    bearing_type_id INTEGER NOT NULL REFERENCES bearing_type(id),
+    lubrication TEXT NOT NULL CHECK (lubrication IN ('grease', 'oil')),
+    nominal_rpm REAL,
+    sort_order INTEGER NOT NULL DEFAULT 0,
+    UNIQUE (machine_id, position)
+);
+CREATE TABLE bearing_life (
+    id INTEGER PRIMARY KEY,
+    position_id INTEGER NOT NULL REFERENCES bearing_position(id) ON DELETE CASCADE,
+    installed TEXT NOT NULL,
+    removed TEXT,
+    found_condition TEXT,
+    UNIQUE (position_id, installed),
+    CHECK (removed IS NULL OR removed >= installed)
+);
+CREATE TABLE point (
+    id INTEGER PRIMARY KEY,
+    tag TEXT NOT NULL UNIQUE,
+    position_id INTEGER NOT NULL REFERENCES bearing_position(id) ON DELETE CASCADE,
+    direction TEXT NOT NULL CHECK (direction IN ('H', 'V', 'A')),
+    sensor TEXT NOT NULL,
+    sensitivity_mv_per_g REAL,
+    sort_order INTEGER NOT NULL DEFAULT 0
+);
+CREATE INDEX point_position ON point(position_id);
+CREATE TABLE reading (
+    id INTEGER PRIMARY KEY,
+    point_id INTEGER NOT NULL REFERENCES point(id) ON DELETE CASCADE,
+    position_id INTEGER NOT NULL REFERENCES bearing_position(id) ON DELETE CASCADE,
+    life_id INTEGER REFERENCES bearing_life(id) ON DELETE SET NULL,
+    taken_at_utc TEXT NOT NULL,
+    utc_offset_s INTEGER NOT NULL,
+    route_day TEXT NOT NULL,
+    shaft_hz REAL NOT NULL,
+    sample_rate_hz REAL NOT NULL,
+    units TEXT NOT NULL,
+    sample_count INTEGER NOT NULL,
+    waveform BLOB,
+    source_file TEXT NOT NULL,
+    content_sha256 TEXT NOT NULL,
+    suspect TEXT,
+    clipped_fraction REAL NOT NULL DEFAULT 0,
+    imported_at TEXT NOT NULL,
+    UNIQUE (content_sha256, point_id, taken_at_utc)
+);
+CREATE INDEX reading_point_time ON reading(point_id, taken_at_utc);
+CREATE INDEX reading_position_time ON reading(position_id, taken_at_utc);
+CREATE INDEX reading_life_time ON reading(life_id, taken_at_utc);
+CREATE INDEX reading_day ON reading(route_day);
+CREATE TABLE analysis (
+    reading_id INTEGER PRIMARY KEY REFERENCES reading(id) ON DELETE CASCADE,
+    version TEXT NOT NULL,
+    document TEXT NOT NULL,
+    analyzed_at TEXT NOT NULL
+);
+CREATE INDEX analysis_version ON analysis(version);
+CREATE TABLE reading_scalar (
+    reading_id INTEGER NOT NULL REFERENCES reading(id) ON DELETE CASCADE,
+    name TEXT NOT NULL,
+    value REAL NOT NULL,
+    PRIMARY KEY (reading_id, name)
+) WITHOUT ROWID;
+CREATE INDEX reading_scalar_name ON reading_scalar(name, reading_id);
+",
+    // 2: outages, replacement plan and the import log.
+    r"
+CREATE TABLE outage (
+    id INTEGER PRIMARY KEY,
+    name TEXT NOT NULL UNIQUE,
+    start_date TEXT NOT NULL,
+    end_date TEXT NOT NULL,
+    CHECK (end_date >= start_date)
+);
+CREATE TABLE outage_area (
+    outage_id INTEGER NOT NULL REFERENCES outage(id) ON DELETE CASCADE,
+    area_id INTEGER NOT NULL REFERENCES area(id) ON DELETE CASCADE,
+    PRIMARY KEY (outage_id, area_id)
+) WITHOUT ROWID;
+CREATE TABLE outage_machine (
+    outage_id INTEGER NOT NULL REFERENCES outage(id) ON DELETE CASCADE,
+    machine_id INTEGER NOT NULL REFERENCES machine(id) ON DELETE CASCADE,
+    PRIMARY KEY (outage_id, machine_id)
+) WITHOUT ROWID;
+CREATE TABLE plan_entry (
+    id INTEGER PRIMARY KEY,
+    life_id INTEGER NOT NULL REFERENCES bearing_life(id) ON DELETE CASCADE,
+    outage_id INTEGER NOT NULL REFERENCES outage(id) ON DELETE CASCADE,
+    status TEXT NOT NULL CHECK (status IN ('planned', 'done', 'cancelled')),
+    note TEXT NOT NULL DEFAULT '',
+    UNIQUE (life_id, outage_id)
+);
+CREATE INDEX plan_entry_outage ON plan_entry(outage_id);
+CREATE TABLE import_run (
+    id INTEGER PRIMARY KEY,
+    folder TEXT NOT NULL,
+    started_at TEXT NOT NULL,
+    finished_at TEXT,
+    new_readings INTEGER NOT NULL DEFAULT 0,
+    duplicates INTEGER NOT NULL DEFAULT 0,
+    rejected INTEGER NOT NULL DEFAULT 0
+);
+CREATE TABLE import_log (
+    id INTEGER PRIMARY KEY,
+    run_id INTEGER NOT NULL REFERENCES import_run(id) ON DELETE CASCADE,
+    file TEXT NOT NULL,
+    point TEXT,
+    outcome TEXT NOT NULL CHECK (outcome IN ('imported', 'duplicate', 'rejected')),
+    reason TEXT,
+    reading_id INTEGER REFERENCES reading(id) ON DELETE SET NULL
+);
+CREATE INDEX import_log_outcome ON import_log(outcome, run_id);
+",
+    // 3: stage calls, one per reading, with their evidence as JSON.
+    r"
+CREATE TABLE stage_call (
+    reading_id INTEGER PRIMARY KEY REFERENCES reading(id) ON DELETE CASCADE,
+    stage INTEGER NOT NULL CHECK (stage BETWEEN 0 AND 4),
+    version TEXT NOT NULL,
+    evidence TEXT NOT NULL,
+    called_at TEXT NOT NULL
+);
+",
+];
+
+impl Store {
+    /// Opens (creating if missing) the database at `path`, upgrading an older schema after backing the
+    /// file up beside itself (`<file>.v<N>.bak`). Cheap when the schema is current: open one `Store`
+    /// per thread.
+    ///
+    /// Errors: [`StoreError::NotADatabase`] for a file that is not `SQLite`, [`StoreError::NewerSchema`]
+    /// for a database written by a newer build, [`StoreError::Busy`] when another process holds a lock
+    /// for longer than [`BUSY_TIMEOUT`].
+    pub fn open(path: &Path) -> Result<Store> {
+        Self::open_to_version(path, SCHEMA_VERSION)
+    }
+
+    /// Opens an existing database without creating it.
+    pub fn open_existing(path: &Path) -> Result<Store> {
+        if !path.is_file() {
+            return Err(StoreError::Io {
+                path: path.to_path_buf(),
+                source: std::io::Error::new(std::io::ErrorKind::NotFound, "no such database file"),
+            });
+        }
+        Self::open(path)
+    }
+
+    pub(crate) fn open_to_version(path: &Path, target: i64) -> Result<Store> {
+        let conn = Connection::open_with_flags(
+            path,
+            OpenFlags::SQLITE_OPEN_READ_WRITE
+                | OpenFlags::SQLITE_OPEN_CREATE
+                | OpenFlags::SQLITE_OPEN_NO_MUTEX,
+        )
+        .map_err(|e| classify(e, path))?;
+        conn.busy_timeout(BUSY_TIMEOUT)
+            .map_err(|e| classify(e, path))?;
+        // The first real read: a file that is not SQLite fails here.
+        let version: i64 = conn
+            .pragma_query_value(None, "user_version", |r| r.get(0))
+            .map_err(|e| classify(e, path))?;
+        if version > SCHEMA_VERSION {
+            return Err(StoreError::NewerSchema {
+                path: path.to_path_buf(),
+                found: version,
+                supported: SCHEMA_VERSION,
+            });
+        }
+        conn.pragma_update(None, "journal_mode", "WAL")
+            .map_err(|e| classify(e, path))?;
+        conn.pragma_update(None, "synchronous", "NORMAL")
+            .map_err(|e| classify(e, path))?;
+        conn.pragma_update(None, "foreign_keys", "ON")
+            .map_err(|e| classify(e, path))?;
+        let mut store = Store {
+            conn,
+            path: path.to_path_buf(),
+        };
+        if version < target {
+            store.migrate(target)?;
+        }
+        Ok(store)
+    }
+
+    fn migrate(&mut self, to: i64) -> Result<()> {
+        let path = self.path.clone();
+        // Back up an existing database first, outside any transaction (`VACUUM INTO` reads one
+        // consistent snapshot; SQLite refuses it inside a transaction).
+        let version: i64 = self
+            .conn
+            .pragma_query_value(None, "user_version", |r| r.get(0))?;
+        let has_tables: bool = self
+            .conn
+            .query_row(
+                "SELECT EXISTS (SELECT 1 FROM sqlite_schema WHERE type = 'table')",
+                [],
+                |r| r.get(0),
+            )
+            .map_err(|e| classify(e, &path))?;
+        if version > 0 || has_tables {
+            backup_beside(&self.conn, &path, version)?;
+        }
+        // Take the write lock so two processes do not migrate at once; re-read the version under it.
+        let tx = self
+            .conn
+            .transaction_with_behavior(rusqlite::TransactionBehavior::Immediate)
+            .map_err(|e| classify(e, &path))?;
+        let current: i64 = tx.pragma_query_value(None, "user_version", |r| r.get(0))?;
+        if current >= to {
+            return Ok(());
+        }
+        for (i, sql) in MIGRATIONS
+            .iter()
+            .enumerate()
+            .take(to as usize)
+            .skip(current as usize)
+        {
+            tx.execute_batch(sql)?;
+            tx.pragma_update(None, "user_version", (i + 1) as i64)?;
+        }
+        tx.commit().map_err(|e| classify(e, &path))?;
+        Ok(())
+    }
+
+    /// The schema version of the open database.
+    pub fn schema_version(&self) -> Result<i64> {
+        Ok(self
+            .conn
+            .pragma_query_value(None, "user_version", |r| r.get(0))?)
+    }
+
+    /// The database file.
+    pub fn path(&self) -> &Path {
+        &self.path
+    }
+
+    /// Runs `SQLite`'s `PRAGMA integrity_check`; returns its lines (`["ok"]` for a sound file).
+    pub fn integrity_check(&self) -> Result<Vec<String>> {
+        let mut stmt = self.conn.prepare("PRAGMA integrity_check")?;
+        let rows = stmt.query_map([], |r| r.get::<_, String>(0))?;
+        Ok(rows.collect::<Result<Vec<_>, _>>()?)
+    }
+}
+
+/// Copies the database to `<file>.v<version>.bak` (or `.v<version>.<n>.bak` when that exists) with
+/// `SQLite`'s `VACUUM INTO`, which writes a consistent copy even in WAL mode.
+fn backup_beside(conn: &Connection, path: &Path, version: i64) -> Result<PathBuf> {
+    let mut backup = sibling(path, &format!("v{version}.bak"));
+    let mut n = 1;
+    while backup.exists() {
+        backup = sibling(path, &format!("v{version}.{n}.bak"));
+        n += 1;
+    }
+    let target = backup.to_string_lossy().into_owned();
+    conn.execute("VACUUM INTO ?1", [&target])
+        .map_err(|e| StoreError::Backup {
+            path: path.to_path_buf(),
+            backup: backup.clone(),
+            message: e.to_string(),
+        })?;
+    Ok(backup)
+}
+
+fn sibling(path: &Path, suffix: &str) -> PathBuf {
+    let mut name = path
+        .file_name()
+        .map(std::ffi::OsStr::to_os_string)
+        .unwrap_or_default();
+    name.push(".");
+    name.push(suffix);
+    path.with_file_name(name)
+}
+
+/// Turns an `SQLite` error met while opening into the store's clear errors.
+fn classify(err: rusqlite::Error, path: &Path) -> StoreError {
+    if is_not_a_database(&err) {
+        StoreError::NotADatabase {
+            path: path.to_path_buf(),
+        }
+    } else if is_busy(&err) {
+        StoreError::Busy {
+            path: path.to_path_buf(),
+        }
+    } else {
+        StoreError::Sqlite(err)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn fresh_database_is_current_with_wal_and_foreign_keys() {
+        let dir = tempfile::tempdir().unwrap();
+        let store = Store::open(&dir.path().join("p.db")).unwrap();
+        assert_eq!(store.schema_version().unwrap(), SCHEMA_VERSION);
+        let mode: String = store
+            .conn
+            .pragma_query_value(None, "journal_mode", |r| r.get(0))
+            .unwrap();
+        assert_eq!(mode.to_lowercase(), "wal");
+        let fk: i64 = store
+            .conn
+            .pragma_query_value(None, "foreign_keys", |r| r.get(0))
+            .unwrap();
+        assert_eq!(fk, 1);
+        // A fresh file has nothing to back up.
+        assert!(!dir.path().join("p.db.v0.bak").exists());
+    }
+
+    #[test]
+    fn migration_backs_up_the_older_file_first() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("old.db");
+        {
+            let store = Store::open_to_version(&path, 1).unwrap();
+            assert_eq!(store.schema_version().unwrap(), 1);
+            store
+                .conn
+                .execute("INSERT INTO area (name) VALUES ('Old area')", [])
+                .unwrap();
+        }
+        let store = Store::open(&path).unwrap();
+        assert_eq!(store.schema_version().unwrap(), SCHEMA_VERSION);
+        let backup = dir.path().join("old.db.v1.bak");
+        assert!(backup.is_file(), "backup beside the file");
+        let old = Connection::open(&backup).unwrap();
+        let v: i64 = old
+            .pragma_query_value(None, "user_version", |r| r.get(0))
+            .unwrap();
+        assert_eq!(v, 1);
+        let name: String = old
+            .query_row("SELECT name FROM area", [], |r| r.get(0))
+            .unwrap();
+        assert_eq!(name, "Old area");
+        // Opening again migrates nothing and makes no second backup.
+        drop(store);
+        let _again = Store::open(&path).unwrap();
+        assert!(!dir.path().join("old.db.v1.1.bak").exists());
+    }
+
+    #[test]
+    fn newer_database_is_refused() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("new.db");
+        {
+            let conn = Connection::open(&path).unwrap();
+            conn.pragma_update(None, "user_version", SCHEMA_VERSION + 1)
+                .unwrap();
+        }
+        let err = Store::open(&path).err().unwrap();
+        assert!(
+            matches!(err, StoreError::NewerSchema { found, .. } if found == SCHEMA_VERSION + 1)
+        );
+        assert!(err.to_string().contains("newer"), "{err}");
+        assert!(err.to_string().contains("new.db"), "{err}");
+    }
+
+    #[test]
+    fn a_text_file_is_not_a_database() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("notes.db");
+        std::fs::write(&path, "these are my notes, not a database\n".repeat(200)).unwrap();
+        let err = Store::open(&path).err().unwrap();
+        assert!(matches!(err, StoreError::NotADatabase { .. }), "{err:?}");
+        assert!(err.to_string().contains("notes.db"), "{err}");
+    }
+
+    #[test]
+    fn a_held_write_lock_gives_a_busy_error() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("busy.db");
+        let store = Store::open(&path).unwrap();
+        store
+            .conn
+            .busy_timeout(std::time::Duration::from_millis(50))
+            .unwrap();
+        let other = Connection::open(&path).unwrap();
+        other
+            .execute_batch("BEGIN IMMEDIATE; INSERT INTO area (name) VALUES ('x');")
+            .unwrap();
+        let err = StoreError::from(
+            store
+                .conn
+                .execute("INSERT INTO area (name) VALUES ('y')", [])
+                .unwrap_err(),
+        );
+        assert!(err.to_string().contains("busy"), "{err}");
+        other.execute_batch("COMMIT").unwrap();
+    }
+}
