@@ -1,2 +1,65 @@
+//! `spallcast`: the vibration analyst's workstation, command line and window.
+//!
+//! This file is only glue: argument parsing and dispatch. Each subcommand lives in its own module.
 #![forbid(unsafe_code)]
-fn main() {}
+
+mod analyzer;
+mod bearings_cmd;
+mod demo_cmd;
+mod diagnose_cmd;
+mod import_cmd;
+
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+use clap::{Parser, Subcommand};
+
+/// Spallcast: rolling-element bearing diagnosis, staging and replacement planning.
+///
+/// Without a subcommand it opens the workstation window on the plant database (`--db`, or the demo plant,
+/// created on first run).
+///
+/// Its calls are advisory. Isolate and lock out a machine before any work on it, and follow local codes
+/// and licensed practice.
+#[derive(Debug, Parser)]
+#[command(name = "spallcast", version, about, long_about)]
+struct Cli {
+    /// Plant database the window opens (default: the demo plant's, created on first run).
+    #[arg(long, value_name = "FILE")]
+    db: Option<PathBuf>,
+    #[command(subcommand)]
+    command: Option<Command>,
+}
+
+#[derive(Debug, Subcommand)]
+enum Command {
+    /// Diagnose one recording: spectra, envelope, fault frequencies and indicators.
+    Diagnose(diagnose_cmd::DiagnoseArgs),
+    /// Import a route folder (recordings plus route.csv) into a plant database.
+    Import(import_cmd::ImportArgs),
+    /// List every bearing position with its stage, location, confidence and replacement dates, most urgent first.
+    Bearings(bearings_cmd::BearingsArgs),
+    /// One bearing's history of stage calls with their evidence.
+    Bearing(bearings_cmd::BearingArgs),
+    /// (Re)create the demo plant database: an invented site with 18 simulated monthly route days.
+    Demo(demo_cmd::DemoArgs),
+}
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    let result = match cli.command {
+        Some(Command::Diagnose(args)) => diagnose_cmd::run(&args),
+        Some(Command::Import(args)) => import_cmd::run(&args, analyzer::default_analyzer().as_ref()),
+        Some(Command::Bearings(args)) => bearings_cmd::run_bearings(&args),
+        Some(Command::Bearing(args)) => bearings_cmd::run_bearing(&args),
+        Some(Command::Demo(args)) => demo_cmd::run(&args),
+        None => demo_cmd::open_window(cli.db),
+    };
+    match result {
+        Ok(code) => code,
+        Err(err) => {
+            eprintln!("spallcast: {err:#}");
+            ExitCode::FAILURE
+        }
+    }
+}

@@ -1,0 +1,390 @@
+//! Every threshold of the stage call and the forecast, in one table.
+//!
+//! Each rule carries its value, unit, meaning and where it comes from. Nothing here is taken from a
+//! published standard except where the source says so; the four-stage model itself is trade practice
+//! (see the stage table in the shared reference sheet, section 6.1, marked there as common practice).
+//! "tuned" means the value was chosen against the project's simulator and the open run-to-failure
+//! recordings, and is a default an analyst may revise.
+
+use serde::Serialize;
+
+/// One documented threshold.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Rule {
+    /// Stable identifier.
+    pub id: &'static str,
+    /// The threshold.
+    pub value: f64,
+    /// Its unit.
+    pub unit: &'static str,
+    /// What it decides.
+    pub meaning: &'static str,
+    /// Where it comes from.
+    pub source: &'static str,
+}
+
+const PRACTICE: &str = "common practice, no source";
+
+/// Readings at the start of a life that form its baseline when the analyst marks none.
+pub const BASELINE_READINGS: Rule = Rule {
+    id: "baseline_readings",
+    value: 3.0,
+    unit: "readings",
+    meaning: "first readings of a life taken as its baseline (median of each indicator)",
+    source: PRACTICE,
+};
+
+/// A change of this many dB over baseline counts as a real rise (a doubling of amplitude).
+pub const RISE_DB: Rule = Rule {
+    id: "rise_db",
+    value: 6.0,
+    unit: "dB over baseline",
+    meaning: "a band or level this far over its baseline counts as risen (about twice the amplitude)",
+    source: PRACTICE,
+};
+
+/// Lowest top frequency of a band that may be called "ultrasonic / high band" for stage 1.
+pub const HIGH_BAND_MIN_HZ: Rule = Rule {
+    id: "high_band_min_hz",
+    value: 20_000.0,
+    unit: "Hz",
+    meaning: "stage 1 needs energy at about 20 kHz and above; a recording that cannot reach it cannot show stage 1",
+    source: "common practice, no source (reference sheet 6.1 gives about 20-60 kHz for stage 1)",
+};
+
+/// Envelope score (dB over the envelope-spectrum background) that counts as a defect tone.
+pub const ENVELOPE_TONE_DB: Rule = Rule {
+    id: "envelope_tone_db",
+    value: 12.0,
+    unit: "dB over envelope background",
+    meaning: "a defect tone family this far above the envelope-spectrum background is present",
+    source: "tuned on the simulator: healthy readings scored up to 9.5 dB, first stage-2 tones 15 dB and more",
+};
+
+/// Envelope harmonics (including the fundamental) needed for a stage-2 call.
+pub const ENVELOPE_HARMONICS: Rule = Rule {
+    id: "envelope_harmonics",
+    value: 2.0,
+    unit: "harmonics",
+    meaning: "the envelope must show the defect tone and at least one harmonic",
+    source: PRACTICE,
+};
+
+/// Discrete defect harmonics in the ordinary spectrum needed for a stage-3 call.
+pub const SPECTRUM_HARMONICS: Rule = Rule {
+    id: "spectrum_harmonics",
+    value: 2.0,
+    unit: "harmonics",
+    meaning: "stage 3: defect harmonics visible in the ordinary (low-frequency) spectrum",
+    source: "common practice, no source (reference sheet 6.1, stage 3)",
+};
+
+/// Sidebands that, with the spectrum harmonics, confirm stage 3.
+pub const SPECTRUM_SIDEBANDS: Rule = Rule {
+    id: "spectrum_sidebands",
+    value: 2.0,
+    unit: "sidebands",
+    meaning: "stage 3: sidebands (±1x inner race, ±FTF rolling element) around the defect harmonics",
+    source: "common practice, no source (reference sheet 6.1, stage 3)",
+};
+
+/// Broadband damage-index rise that places a life in stage 3 without discrete tones.
+pub const DAMAGE_STAGE3_DB: Rule = Rule {
+    id: "damage_stage3_db",
+    value: 8.0,
+    unit: "dB over baseline",
+    meaning: "damage index (noise-floor rise between tones; without fault factors the largest rise of overall, resonance-region and noise-floor levels) at the stage-3 onset; the replacement point of the forecast",
+    source: "tuned; common practice, no source",
+};
+
+/// Broadband damage-index rise that places a life in stage 4.
+pub const DAMAGE_STAGE4_DB: Rule = Rule {
+    id: "damage_stage4_db",
+    value: 14.0,
+    unit: "dB over baseline",
+    meaning: "damage index at the start of stage-4 risk (broadband haystack); the risk point of the forecast",
+    source: "tuned; common practice, no source",
+};
+
+/// Resonance-region rise with impulsive statistics that makes a generic stage-2 call.
+pub const GENERIC_STAGE2_KURTOSIS: Rule = Rule {
+    id: "generic_stage2_kurtosis",
+    value: 4.0,
+    unit: "kurtosis",
+    meaning: "without defect tones: resonance region risen and kurtosis above this = early impacting damage (stage 2)",
+    source: "common practice, no source (Gaussian noise has kurtosis 3)",
+};
+
+/// Resonance-region rise that, with envelope tones, marks stage 2 rather than stage 1.
+pub const RESONANCE_STAGE2_DB: Rule = Rule {
+    id: "resonance_stage2_db",
+    value: 3.0,
+    unit: "dB over baseline",
+    meaning: "envelope tones found only in an ultrasonic demodulation band are stage 1 unless the resonance region has risen this much (or kurtosis shows impacting)",
+    source: "tuned; common practice, no source (stage 2: the bearing rings its resonances)",
+};
+
+/// Noise-floor rise (dB over baseline) for stage 3 when defect tones are present.
+pub const NOISE_FLOOR_STAGE3_DB: Rule = Rule {
+    id: "noise_floor_stage3_db",
+    value: 6.0,
+    unit: "dB over baseline",
+    meaning: "stage 3: the floor between tones rises",
+    source: "common practice, no source (reference sheet 6.1, stage 3)",
+};
+
+/// Noise-floor rise for stage 4.
+pub const NOISE_FLOOR_STAGE4_DB: Rule = Rule {
+    id: "noise_floor_stage4_db",
+    value: 12.0,
+    unit: "dB over baseline",
+    meaning: "stage 4: the floor rises at all frequencies into a haystack",
+    source: "common practice, no source (reference sheet 6.1, stage 4)",
+};
+
+/// 1x rise that supports stage 4 (clearance grows).
+pub const ONE_X_STAGE4_DB: Rule = Rule {
+    id: "one_x_stage4_db",
+    value: 6.0,
+    unit: "dB over baseline",
+    meaning: "stage 4: 1x amplitude rises as clearance grows",
+    source: "common practice, no source (reference sheet 6.1, stage 4)",
+};
+
+/// Fall of the defect-tone score from this life's peak that shows tones fading into noise.
+pub const TONE_FADE_DB: Rule = Rule {
+    id: "tone_fade_db",
+    value: 6.0,
+    unit: "dB below the life's peak",
+    meaning: "stage 4: discrete tones fade into broadband noise",
+    source: "common practice, no source (reference sheet 6.1, stage 4)",
+};
+
+/// Fraction of its peak that kurtosis must fall back to (while RMS keeps rising) for stage 4.
+pub const KURTOSIS_FALLBACK: Rule = Rule {
+    id: "kurtosis_fallback",
+    value: 0.6,
+    unit: "fraction of the life's peak kurtosis",
+    meaning: "kurtosis and crest factor rise in early damage and fall again as damage spreads while RMS keeps rising",
+    source: PRACTICE,
+};
+
+/// Consecutive readings at a stage before the call holds there (a ratchet against single spikes).
+pub const CONFIRM_READINGS: Rule = Rule {
+    id: "confirm_readings",
+    value: 2.0,
+    unit: "readings",
+    meaning: "a stage seen in this many consecutive readings becomes the floor of later calls",
+    source: PRACTICE,
+};
+
+/// Readings needed (after the baseline) to fit a trend.
+pub const TREND_MIN_READINGS: Rule = Rule {
+    id: "trend_min_readings",
+    value: 4.0,
+    unit: "readings",
+    meaning: "fewer readings in the trend window: fall back on stage-duration ranges",
+    source: PRACTICE,
+};
+
+/// Readings in the trend window (the most recent ones).
+pub const TREND_WINDOW: Rule = Rule {
+    id: "trend_window",
+    value: 8.0,
+    unit: "readings",
+    meaning: "the trend is fitted to at most this many most recent readings",
+    source: "tuned",
+};
+
+/// Damage index below which readings are flat noise and not used to fit growth.
+pub const TREND_FLOOR_DB: Rule = Rule {
+    id: "trend_floor_db",
+    value: 2.0,
+    unit: "dB over baseline",
+    meaning: "growth is fitted only once the damage index has left the baseline scatter",
+    source: "tuned",
+};
+
+/// Two-sided coverage of the prediction interval.
+pub const INTERVAL_COVERAGE: Rule = Rule {
+    id: "interval_coverage",
+    value: 0.8,
+    unit: "probability",
+    meaning: "prediction interval of the projected dates (10 % and 90 % bounds)",
+    source: "choice of this tool",
+};
+
+/// Stage-2-to-stage-3 duration range, grease-fed, at the reference speed (low end).
+pub const STAGE2_DAYS_MIN: Rule = Rule {
+    id: "stage2_days_min",
+    value: 60.0,
+    unit: "days",
+    meaning: "time from the first stage-2 call to stage 3, shortest (grease, reference speed)",
+    source: "common practice, no source (months between first envelope tones and failure; six to eight months often quoted)",
+};
+
+/// Stage-2-to-stage-3 duration range (high end).
+pub const STAGE2_DAYS_MAX: Rule = Rule {
+    id: "stage2_days_max",
+    value: 240.0,
+    unit: "days",
+    meaning: "time from the first stage-2 call to stage 3, longest (grease, reference speed)",
+    source: "common practice, no source",
+};
+
+/// Stage-3-to-stage-4 duration range (low end).
+pub const STAGE3_DAYS_MIN: Rule = Rule {
+    id: "stage3_days_min",
+    value: 14.0,
+    unit: "days",
+    meaning: "time from stage 3 to stage-4 risk, shortest (grease, reference speed)",
+    source: "common practice, no source; from memory",
+};
+
+/// Stage-3-to-stage-4 duration range (high end).
+pub const STAGE3_DAYS_MAX: Rule = Rule {
+    id: "stage3_days_max",
+    value: 90.0,
+    unit: "days",
+    meaning: "time from stage 3 to stage-4 risk, longest (grease, reference speed)",
+    source: "common practice, no source; from memory",
+};
+
+/// Stage-1-to-stage-2 duration range (low end).
+pub const STAGE1_DAYS_MIN: Rule = Rule {
+    id: "stage1_days_min",
+    value: 90.0,
+    unit: "days",
+    meaning: "time from stage 1 to stage 2, shortest (grease, reference speed)",
+    source: "common practice, no source; from memory",
+};
+
+/// Stage-1-to-stage-2 duration range (high end).
+pub const STAGE1_DAYS_MAX: Rule = Rule {
+    id: "stage1_days_max",
+    value: 365.0,
+    unit: "days",
+    meaning: "time from stage 1 to stage 2, longest (grease, reference speed)",
+    source: "common practice, no source; from memory",
+};
+
+/// Duration multiplier for oil-fed (circulating) lubrication.
+pub const OIL_FACTOR: Rule = Rule {
+    id: "oil_factor",
+    value: 1.5,
+    unit: "× grease-fed duration",
+    meaning: "oil-fed bearings outlast grease-fed ones once damaged (oil flushes debris and carries heat away)",
+    source: "common practice, no source (the factor is from memory)",
+};
+
+/// Reference shaft speed of the stage durations; durations scale with reference/actual speed.
+pub const REFERENCE_SPEED_HZ: Rule = Rule {
+    id: "reference_speed_hz",
+    value: 25.0,
+    unit: "Hz (1500 r/min)",
+    meaning: "stage durations are for this speed and scale inversely with speed (damage per revolution)",
+    source: "common practice, no source; from memory",
+};
+
+/// Remaining life in stage 2 as a fraction of the rating life (low end), for the rating-life prior.
+pub const STAGE2_LIFE_FRACTION_MIN: Rule = Rule {
+    id: "stage2_life_fraction_min",
+    value: 0.05,
+    unit: "fraction of L10",
+    meaning: "stage 2: about 5-10 % of the rating life left",
+    source: "common practice, no source; from memory, low confidence (reference sheet 6.1)",
+};
+
+/// Remaining life in stage 2 (high end).
+pub const STAGE2_LIFE_FRACTION_MAX: Rule = Rule {
+    id: "stage2_life_fraction_max",
+    value: 0.10,
+    unit: "fraction of L10",
+    meaning: "stage 2: about 5-10 % of the rating life left",
+    source: "common practice, no source; from memory, low confidence (reference sheet 6.1)",
+};
+
+/// Remaining life in stage 3 (low end).
+pub const STAGE3_LIFE_FRACTION_MIN: Rule = Rule {
+    id: "stage3_life_fraction_min",
+    value: 0.01,
+    unit: "fraction of L10",
+    meaning: "stage 3: about 1-5 % of the rating life left",
+    source: "common practice, no source; from memory, low confidence (reference sheet 6.1)",
+};
+
+/// Remaining life in stage 3 (high end).
+pub const STAGE3_LIFE_FRACTION_MAX: Rule = Rule {
+    id: "stage3_life_fraction_max",
+    value: 0.05,
+    unit: "fraction of L10",
+    meaning: "stage 3: about 1-5 % of the rating life left",
+    source: "common practice, no source; from memory, low confidence (reference sheet 6.1)",
+};
+
+/// The whole table, for display and documentation.
+pub const RULES: &[Rule] = &[
+    BASELINE_READINGS,
+    RISE_DB,
+    HIGH_BAND_MIN_HZ,
+    ENVELOPE_TONE_DB,
+    ENVELOPE_HARMONICS,
+    SPECTRUM_HARMONICS,
+    SPECTRUM_SIDEBANDS,
+    DAMAGE_STAGE3_DB,
+    DAMAGE_STAGE4_DB,
+    GENERIC_STAGE2_KURTOSIS,
+    RESONANCE_STAGE2_DB,
+    NOISE_FLOOR_STAGE3_DB,
+    NOISE_FLOOR_STAGE4_DB,
+    ONE_X_STAGE4_DB,
+    TONE_FADE_DB,
+    KURTOSIS_FALLBACK,
+    CONFIRM_READINGS,
+    TREND_MIN_READINGS,
+    TREND_WINDOW,
+    TREND_FLOOR_DB,
+    INTERVAL_COVERAGE,
+    STAGE1_DAYS_MIN,
+    STAGE1_DAYS_MAX,
+    STAGE2_DAYS_MIN,
+    STAGE2_DAYS_MAX,
+    STAGE3_DAYS_MIN,
+    STAGE3_DAYS_MAX,
+    OIL_FACTOR,
+    REFERENCE_SPEED_HZ,
+    STAGE2_LIFE_FRACTION_MIN,
+    STAGE2_LIFE_FRACTION_MAX,
+    STAGE3_LIFE_FRACTION_MIN,
+    STAGE3_LIFE_FRACTION_MAX,
+];
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn table_is_complete_and_unique() {
+        let mut ids: Vec<&str> = RULES.iter().map(|r| r.id).collect();
+        ids.sort_unstable();
+        let n = ids.len();
+        ids.dedup();
+        assert_eq!(ids.len(), n, "duplicate rule id");
+        for r in RULES {
+            assert!(r.value.is_finite() && r.value > 0.0, "{}", r.id);
+            assert!(!r.source.is_empty() && !r.meaning.is_empty(), "{}", r.id);
+        }
+        // Every `*_min` rule has a larger `*_max` partner, and stage-4 levels sit above stage-3 ones.
+        let value = |id: &str| RULES.iter().find(|r| r.id == id).map(|r| r.value);
+        for r in RULES.iter().filter(|r| r.id.ends_with("_min")) {
+            let partner = format!("{}_max", r.id.trim_end_matches("_min"));
+            assert!(
+                value(&partner).is_some_and(|m| m > r.value),
+                "{} vs {partner}",
+                r.id
+            );
+        }
+        assert!(value("damage_stage4_db") > value("damage_stage3_db"));
+        assert!(value("noise_floor_stage4_db") > value("noise_floor_stage3_db"));
+    }
+}

@@ -1,0 +1,269 @@
+//! Stage rules on hand-built indicator histories. The expected stages follow the four-stage model of
+//! rolling-element bearing failure (common practice, no source; summarised in the shared reference
+//! sheet, section 6.1).
+
+use super::*;
+
+fn healthy() -> ReadingIndicators {
+    ReadingIndicators {
+        accel_rms_g: Some(0.20),
+        crest_factor: Some(3.5),
+        kurtosis: Some(3.0),
+        velocity_rms_mm_s: Some(1.0),
+        iso_zone: Some(1),
+        high_band_rms_g: Some(0.010),
+        resonance_band_rms_g: Some(0.05),
+        noise_floor_g: Some(1e-4),
+        one_x_amplitude: Some(0.8),
+        tones: Some(
+            [ToneEvidence {
+                envelope_score_db: 2.0,
+                envelope_harmonics: 0,
+                ..Default::default()
+            }; 4],
+        ),
+        envelope_band_hz: Some([2000.0, 8000.0]),
+    }
+}
+
+fn life(items: Vec<ReadingIndicators>) -> Vec<LifeReading> {
+    items
+        .into_iter()
+        .enumerate()
+        .map(|(i, indicators)| LifeReading {
+            t_s: i as f64 * 30.0 * 86_400.0,
+            indicators,
+            baseline_mark: false,
+        })
+        .collect()
+}
+
+fn with_outer(
+    mut r: ReadingIndicators,
+    score: f64,
+    harmonics: u32,
+    spectrum: u32,
+    sidebands: u32,
+) -> ReadingIndicators {
+    if let Some(t) = r.tones.as_mut() {
+        t[0] = ToneEvidence {
+            envelope_score_db: score,
+            envelope_harmonics: harmonics,
+            spectrum_harmonics: spectrum,
+            spectrum_sidebands: sidebands,
+        };
+    }
+    r
+}
+
+fn scaled(mut r: ReadingIndicators, rms: f64, floor: f64, resonance: f64) -> ReadingIndicators {
+    r.accel_rms_g = r.accel_rms_g.map(|v| v * rms);
+    r.noise_floor_g = r.noise_floor_g.map(|v| v * floor);
+    r.resonance_band_rms_g = r.resonance_band_rms_g.map(|v| v * resonance);
+    r
+}
+
+#[test]
+fn a_flat_healthy_life_stays_at_stage_zero() {
+    // Small month-to-month scatter (±1 dB) is not damage.
+    let items = (0..12)
+        .map(|i| scaled(healthy(), 1.0 + 0.1 * f64::from(i % 3) - 0.1, 1.05, 0.95))
+        .collect();
+    let calls = assess_life(&life(items), &StageOptions::default());
+    assert_eq!(calls.len(), 12);
+    assert!(
+        calls
+            .iter()
+            .all(|c| c.stage == 0 && c.location == Location::None),
+        "{calls:#?}"
+    );
+    assert!(calls[..3].iter().all(|c| c.in_baseline) && !calls[3].in_baseline);
+    assert!(
+        calls
+            .iter()
+            .all(|c| c.limits.is_empty() && c.confidence >= 0.85)
+    );
+}
+
+#[test]
+fn a_life_walks_through_the_four_stages_in_order() {
+    let mut h1 = healthy();
+    h1.high_band_rms_g = Some(0.03); // +9.5 dB: ultrasonic energy only.
+    let s2 = with_outer(h1.clone(), 14.0, 3, 0, 0);
+    let s3 = with_outer(scaled(h1.clone(), 1.5, 2.5, 2.0), 20.0, 5, 3, 4);
+    let mut s4 = with_outer(scaled(h1.clone(), 6.0, 6.0, 5.0), 9.0, 1, 1, 0);
+    s4.one_x_amplitude = Some(2.0);
+    let items = vec![
+        healthy(),
+        healthy(),
+        healthy(),
+        h1.clone(),
+        h1,
+        s2.clone(),
+        s2,
+        s3.clone(),
+        s3,
+        s4.clone(),
+        s4,
+    ];
+    let calls = assess_life(&life(items), &StageOptions::default());
+    let stages: Vec<u8> = calls.iter().map(|c| c.stage).collect();
+    assert_eq!(stages, vec![0, 0, 0, 1, 1, 2, 2, 3, 3, 4, 4]);
+    assert_eq!(calls[5].location, Location::OuterRace);
+    assert_eq!(calls[7].location, Location::OuterRace);
+    // In stage 4 the tone has faded, yet the location is kept from the life's history.
+    assert_eq!(calls[9].location, Location::OuterRace);
+    let e2 = calls[5].evidence.join(" ");
+    assert!(e2.contains("BPFO") && e2.contains("3 harmonics"), "{e2}");
+    let e3 = calls[7].evidence.join(" ");
+    assert!(e3.contains("3 discrete harmonics with 4 sidebands"), "{e3}");
+    let e4 = calls[9].evidence.join(" ");
+    assert!(e4.contains("faded") && e4.contains("1x"), "{e4}");
+    // Stage 3 relative levels are against the baseline: noise floor ×2.5 = +7.96 dB.
+    assert!((calls[7].relative.noise_floor_db.unwrap() - 7.96).abs() < 0.01);
+}
+
+#[test]
+fn without_ultrasonic_bandwidth_stage_one_is_not_guessed() {
+    let mut base = healthy();
+    base.high_band_rms_g = None;
+    let calls = assess_life(&life(vec![base.clone(); 5]), &StageOptions::default());
+    for c in &calls {
+        assert_eq!(c.stage, 0);
+        assert!(
+            c.limits
+                .iter()
+                .any(|l| l.contains("stage 1 cannot be shown")),
+            "{:?}",
+            c.limits
+        );
+        assert!(
+            c.confidence < 0.8,
+            "a stage-0 call that cannot see stage 1 is less sure"
+        );
+    }
+}
+
+#[test]
+fn a_single_spike_does_not_hold_but_two_in_a_row_do() {
+    let s2 = with_outer(healthy(), 12.0, 2, 0, 0);
+    let spike = assess_life(
+        &life(vec![
+            healthy(),
+            healthy(),
+            healthy(),
+            s2.clone(),
+            healthy(),
+            healthy(),
+        ]),
+        &StageOptions::default(),
+    );
+    assert_eq!(
+        spike.iter().map(|c| c.stage).collect::<Vec<_>>(),
+        vec![0, 0, 0, 2, 0, 0]
+    );
+    let held = assess_life(
+        &life(vec![
+            healthy(),
+            healthy(),
+            healthy(),
+            s2.clone(),
+            s2,
+            healthy(),
+        ]),
+        &StageOptions::default(),
+    );
+    assert_eq!(
+        held.iter().map(|c| c.stage).collect::<Vec<_>>(),
+        vec![0, 0, 0, 2, 2, 2]
+    );
+    assert_eq!(held[5].raw_stage, 0);
+    assert!(
+        held[5]
+            .evidence
+            .iter()
+            .any(|e| e.contains("Held at stage 2"))
+    );
+}
+
+#[test]
+fn kurtosis_falling_back_while_rms_rises_is_spreading_damage() {
+    // Generic indicators only (no fault factors): kurtosis rises in early damage, then falls while
+    // RMS keeps rising (common practice, no source).
+    let base = ReadingIndicators {
+        accel_rms_g: Some(0.4),
+        kurtosis: Some(3.0),
+        crest_factor: Some(4.0),
+        ..Default::default()
+    };
+    let early = ReadingIndicators {
+        accel_rms_g: Some(0.9),
+        kurtosis: Some(8.0),
+        ..base.clone()
+    };
+    let late = ReadingIndicators {
+        accel_rms_g: Some(3.0),
+        kurtosis: Some(3.5),
+        ..base.clone()
+    };
+    let calls = assess_life(
+        &life(vec![
+            base.clone(),
+            base.clone(),
+            base,
+            early.clone(),
+            early,
+            late,
+        ]),
+        &StageOptions::default(),
+    );
+    assert_eq!(calls[3].stage, 2, "{:#?}", calls[3]);
+    assert_eq!(calls[3].location, Location::Unknown);
+    assert_eq!(calls[5].stage, 4, "{:#?}", calls[5]);
+    assert!(
+        calls[5]
+            .evidence
+            .iter()
+            .any(|e| e.contains("Kurtosis fell back"))
+    );
+    assert!(
+        calls[5]
+            .limits
+            .iter()
+            .any(|l| l.contains("No fault frequencies"))
+    );
+    assert!((calls[5].damage_index_db - 20.0 * (3.0_f64 / 0.4).log10()).abs() < 1e-9);
+}
+
+#[test]
+fn marked_baseline_readings_replace_the_first_ones() {
+    // Installed already noisy, cleaned up: the analyst marks readings 3 and 4 as the reference.
+    let noisy = scaled(healthy(), 3.0, 3.0, 3.0);
+    let mut readings = life(vec![
+        noisy.clone(),
+        noisy.clone(),
+        noisy,
+        healthy(),
+        healthy(),
+        healthy(),
+    ]);
+    readings[3].baseline_mark = true;
+    readings[4].baseline_mark = true;
+    let calls = assess_life(&readings, &StageOptions::default());
+    assert!(calls[3].in_baseline && !calls[0].in_baseline);
+    assert!((calls[0].relative.accel_rms_db.unwrap() - 9.54).abs() < 0.01);
+    assert_eq!(calls[5].stage, 0);
+}
+
+#[test]
+fn one_reading_alone_is_its_own_baseline() {
+    let calls = assess_life(&life(vec![healthy()]), &StageOptions::default());
+    assert_eq!(calls[0].stage, 0);
+    assert!(calls[0].damage_index_db.abs() < 1e-12);
+    // A lone reading that already shows a clear defect tone is still called (absolute evidence).
+    let calls = assess_life(
+        &life(vec![with_outer(healthy(), 15.0, 4, 0, 0)]),
+        &StageOptions::default(),
+    );
+    assert_eq!(calls[0].stage, 2);
+}

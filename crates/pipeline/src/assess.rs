@@ -1,0 +1,342 @@
+//! Stage assessment and replacement forecast over a plant database.
+//!
+//! For every bearing position and each of its lives, the readings' stored indicators are loaded in
+//! time order per measurement point, assessed with [`spallcast_analysis::stage::assess_life`], and
+//! forecast with [`spallcast_analysis::forecast::forecast_life`]. [`assess_store`] writes the call of
+//! every reading into the store's stage-call table (evidence as JSON: the call, and the forecast as it
+//! stood at that reading). A position's summary is its most urgent point in the current life.
+//!
+//! Calls and forecasts are advisory; a person decides, and isolates and locks out the machine before
+//! any work on it.
+
+use std::collections::BTreeMap;
+
+use anyhow::Context as _;
+use chrono::{DateTime, TimeZone as _, Utc};
+use serde::Serialize;
+use spallcast_analysis::Diagnosis;
+use spallcast_analysis::forecast::{
+    Backtest, Forecast, ForecastContext, Lubrication, backtest_life, forecast_life,
+};
+use spallcast_analysis::stage::{
+    LifeReading, Location, ReadingIndicators, StageCall, StageOptions, ToneUse, assess_life, keys,
+};
+use spallcast_store::{BearingState, LifeInfo, ReadingMeta, Store};
+
+/// Version of the stage logic recorded with every stored call.
+pub const STAGE_VERSION: &str = "spallcast-stage-1";
+
+/// The assessed history of one measurement point over one bearing life.
+#[derive(Debug, Clone, Serialize)]
+pub struct PointHistory {
+    /// Point id (tag).
+    pub point: String,
+    /// Reading ids, parallel to `calls`.
+    pub reading_ids: Vec<i64>,
+    /// When each reading was taken.
+    pub taken_at: Vec<DateTime<Utc>>,
+    /// One call per reading.
+    pub calls: Vec<StageCall>,
+    /// Forecast at each reading (causal: from the calls up to it).
+    pub forecasts: Vec<Option<Forecast>>,
+    /// Readings left out (not analysed or suspect), with the reason.
+    pub skipped: Vec<(i64, String)>,
+}
+
+/// One bearing life of a position.
+#[derive(Debug, Clone, Serialize)]
+pub struct LifeAssessment {
+    /// The life.
+    pub life: LifeInfo,
+    /// One history per measurement point.
+    pub points: Vec<PointHistory>,
+    /// For a replaced life: the replay against the actual replacement, per point.
+    pub backtests: Vec<(String, Backtest)>,
+}
+
+/// The current state of one bearing position, for the replacement list.
+#[derive(Debug, Clone, Serialize)]
+pub struct BearingSummary {
+    /// Bearing position id.
+    pub position_id: i64,
+    /// Area.
+    pub area: String,
+    /// Machine id (tag).
+    pub machine: String,
+    /// Machine name.
+    pub machine_name: String,
+    /// Position.
+    pub position: String,
+    /// Point whose call is reported (the most urgent one), if any reading was assessed.
+    pub point: Option<String>,
+    /// Stage 0..=4 (`None` without assessed readings).
+    pub stage: Option<u8>,
+    /// Fault location.
+    pub location: Option<Location>,
+    /// Confidence 0..1.
+    pub confidence: Option<f64>,
+    /// Forecast (dates as Unix seconds inside; see the `*_at` fields for dates).
+    pub forecast: Option<Forecast>,
+    /// `replace_by` central date.
+    pub replace_by: Option<DateTime<Utc>>,
+    /// `risk_from` central date.
+    pub risk_from: Option<DateTime<Utc>>,
+    /// Latest reading of the current life.
+    pub last_reading: Option<DateTime<Utc>>,
+}
+
+/// Seconds on the Unix axis to a UTC date.
+pub fn utc_from_s(t_s: f64) -> Option<DateTime<Utc>> {
+    if !t_s.is_finite() {
+        return None;
+    }
+    Utc.timestamp_opt(t_s.floor() as i64, 0).single()
+}
+
+fn to_s(t: DateTime<Utc>) -> f64 {
+    t.timestamp() as f64 + f64::from(t.timestamp_subsec_millis()) / 1000.0
+}
+
+/// Indicators of one reading from its stored analysis: the `stage.*` scalars when the analyzer
+/// stored them, else the analysis document read back as a diagnosis.
+fn reading_indicators(
+    store: &Store,
+    reading: &ReadingMeta,
+) -> anyhow::Result<Result<ReadingIndicators, String>> {
+    let Some(record) = store
+        .analysis(reading.id)
+        .with_context(|| format!("loading the analysis of reading {}", reading.id))?
+    else {
+        return Ok(Err("not analysed".to_owned()));
+    };
+    if record.scalars.keys().any(|k| k.starts_with("stage."))
+        && record.scalars.contains_key(keys::ACCEL_RMS_G)
+    {
+        return Ok(Ok(ReadingIndicators::from_scalars(&record.scalars)));
+    }
+    match serde_json::from_value::<Diagnosis>(record.document) {
+        Ok(d) => Ok(Ok(ReadingIndicators::from_diagnosis(&d, ToneUse::Use))),
+        Err(e) => Ok(Err(format!(
+            "analysis document of version {} not readable: {e}",
+            record.version
+        ))),
+    }
+}
+
+fn lubrication(l: spallcast_store::Lubrication) -> Lubrication {
+    match l {
+        spallcast_store::Lubrication::Oil => Lubrication::Oil,
+        spallcast_store::Lubrication::Grease => Lubrication::Grease,
+    }
+}
+
+fn date_s(d: chrono::NaiveDate) -> f64 {
+    d.and_hms_opt(0, 0, 0)
+        .map_or(0.0, |t| t.and_utc().timestamp() as f64)
+}
+
+/// Assesses every life of one bearing position (oldest life first), without writing anything.
+pub fn assess_position(
+    store: &Store,
+    state: &BearingState,
+    options: &StageOptions,
+) -> anyhow::Result<Vec<LifeAssessment>> {
+    let lives = store
+        .lives_with_readings(state.position_id)
+        .with_context(|| format!("loading the lives of {} {}", state.machine, state.position))?;
+    let mut out = Vec::with_capacity(lives.len());
+    for life in lives {
+        let mut by_point: BTreeMap<String, Vec<&ReadingMeta>> = BTreeMap::new();
+        for r in &life.readings {
+            by_point.entry(r.point.clone()).or_default().push(r);
+        }
+        let mut points = Vec::new();
+        let mut backtests = Vec::new();
+        for (point, mut readings) in by_point {
+            readings.sort_by_key(|r| r.taken_at);
+            let mut hist = PointHistory {
+                point: point.clone(),
+                reading_ids: Vec::new(),
+                taken_at: Vec::new(),
+                calls: Vec::new(),
+                forecasts: Vec::new(),
+                skipped: Vec::new(),
+            };
+            let mut life_readings = Vec::new();
+            let mut shaft_hz = 0.0;
+            for r in readings {
+                if let Some(why) = &r.suspect {
+                    hist.skipped.push((r.id, format!("suspect reading: {why}")));
+                    continue;
+                }
+                match reading_indicators(store, r)? {
+                    Ok(indicators) => {
+                        let t = r.taken_at.with_timezone(&Utc);
+                        hist.reading_ids.push(r.id);
+                        hist.taken_at.push(t);
+                        shaft_hz = r.shaft_hz;
+                        life_readings.push(LifeReading {
+                            t_s: to_s(t),
+                            indicators,
+                            baseline_mark: false,
+                        });
+                    }
+                    Err(why) => hist.skipped.push((r.id, why)),
+                }
+            }
+            let ctx = ForecastContext {
+                lubrication: lubrication(state.lubrication),
+                shaft_hz,
+                installed_s: Some(date_s(life.life.installed)),
+                rating_life_s: None,
+            };
+            hist.calls = assess_life(&life_readings, options);
+            hist.forecasts = (0..hist.calls.len())
+                .map(|i| forecast_life(&hist.calls[..=i], &ctx))
+                .collect();
+            if let Some(removed) = life.life.removed
+                && !life_readings.is_empty()
+            {
+                backtests.push((
+                    point.clone(),
+                    backtest_life(&life_readings, options, &ctx, date_s(removed)),
+                ));
+            }
+            points.push(hist);
+        }
+        out.push(LifeAssessment {
+            life: life.life,
+            points,
+            backtests,
+        });
+    }
+    Ok(out)
+}
+
+/// The summary of a position from its current (latest) life: the point with the highest stage, then
+/// the earliest `replace_by`.
+pub fn summarize(state: &BearingState, lives: &[LifeAssessment]) -> BearingSummary {
+    let current = lives.last();
+    let best = current.and_then(|l| {
+        l.points
+            .iter()
+            .filter_map(|p| {
+                Some((
+                    p,
+                    p.calls.last()?,
+                    p.forecasts.last().and_then(Option::as_ref),
+                ))
+            })
+            .max_by(|a, b| {
+                a.1.stage
+                    .cmp(&b.1.stage)
+                    .then_with(|| urgency_s(b.2).total_cmp(&urgency_s(a.2)))
+            })
+    });
+    let last_reading = current.and_then(|l| {
+        l.points
+            .iter()
+            .filter_map(|p| p.taken_at.last().copied())
+            .max()
+    });
+    BearingSummary {
+        position_id: state.position_id,
+        area: state.area.clone(),
+        machine: state.machine.clone(),
+        machine_name: state.machine_name.clone(),
+        position: state.position.clone(),
+        point: best.map(|b| b.0.point.clone()),
+        stage: best.map(|b| b.1.stage),
+        location: best.map(|b| b.1.location),
+        confidence: best.map(|b| b.1.confidence),
+        replace_by: best
+            .and_then(|b| b.2?.replace_by)
+            .and_then(|p| utc_from_s(p.t_s)),
+        risk_from: best
+            .and_then(|b| b.2?.risk_from)
+            .and_then(|p| utc_from_s(p.t_s)),
+        forecast: best.and_then(|b| b.2.cloned()),
+        last_reading,
+    }
+}
+
+fn urgency_s(f: Option<&Forecast>) -> f64 {
+    f.and_then(|f| f.replace_by.or(f.risk_from))
+        .map_or(f64::INFINITY, |p| p.t_s)
+}
+
+/// Sorts summaries by urgency: highest stage first, then earliest `replace_by`, then earliest
+/// `risk_from`; positions without readings last.
+pub fn sort_by_urgency(list: &mut [BearingSummary]) {
+    list.sort_by(|a, b| {
+        let key = |s: &BearingSummary| {
+            (
+                s.stage.map_or(-1, i32::from),
+                s.replace_by.map_or(i64::MAX, |d| d.timestamp()),
+                s.risk_from.map_or(i64::MAX, |d| d.timestamp()),
+            )
+        };
+        let (sa, ra, fa) = key(a);
+        let (sb, rb, fb) = key(b);
+        sb.cmp(&sa)
+            .then(ra.cmp(&rb))
+            .then(fa.cmp(&fb))
+            .then(a.machine.cmp(&b.machine))
+            .then(a.position.cmp(&b.position))
+    });
+}
+
+/// Counts of one run of [`assess_store`].
+#[derive(Debug, Clone, Default, Serialize)]
+pub struct AssessReport {
+    /// Positions assessed.
+    pub positions: usize,
+    /// Stage calls written.
+    pub calls_written: usize,
+    /// Readings left out (not analysed, unreadable or suspect).
+    pub readings_skipped: usize,
+    /// One summary per position, most urgent first.
+    pub summaries: Vec<BearingSummary>,
+}
+
+/// Assesses every bearing position and life in the store and writes each reading's stage call (with
+/// its evidence and the forecast at that reading) into the stage-call table.
+pub fn assess_store(store: &mut Store, options: &StageOptions) -> anyhow::Result<AssessReport> {
+    let states = store.latest_states().context("listing bearing positions")?;
+    let mut report = AssessReport::default();
+    for state in &states {
+        let lives = assess_position(store, state, options)?;
+        for life in &lives {
+            for p in &life.points {
+                report.readings_skipped += p.skipped.len();
+                for ((id, call), forecast) in p.reading_ids.iter().zip(&p.calls).zip(&p.forecasts) {
+                    let evidence =
+                        serde_json::json!({ "call": call, "forecast": forecast, "point": p.point });
+                    store
+                        .put_stage_call(*id, call.stage, STAGE_VERSION, &evidence)
+                        .with_context(|| format!("storing the stage call of reading {id}"))?;
+                    report.calls_written += 1;
+                }
+            }
+        }
+        report.summaries.push(summarize(state, &lives));
+        report.positions += 1;
+    }
+    sort_by_urgency(&mut report.summaries);
+    Ok(report)
+}
+
+/// Summaries of every position, most urgent first, computed without writing.
+pub fn bearing_summaries(
+    store: &Store,
+    options: &StageOptions,
+) -> anyhow::Result<Vec<BearingSummary>> {
+    let states = store.latest_states().context("listing bearing positions")?;
+    let mut out = Vec::with_capacity(states.len());
+    for state in &states {
+        let lives = assess_position(store, state, options)?;
+        out.push(summarize(state, &lives));
+    }
+    sort_by_urgency(&mut out);
+    Ok(out)
+}
