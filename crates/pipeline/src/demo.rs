@@ -41,7 +41,11 @@ pub fn default_db_path() -> PathBuf {
     let base = std::env::var_os("XDG_DATA_HOME")
         .filter(|p| !p.is_empty())
         .map(PathBuf::from)
-        .or_else(|| std::env::var_os("HOME").filter(|p| !p.is_empty()).map(|h| PathBuf::from(h).join(".local/share")));
+        .or_else(|| {
+            std::env::var_os("HOME")
+                .filter(|p| !p.is_empty())
+                .map(|h| PathBuf::from(h).join(".local/share"))
+        });
     match base {
         Some(b) => b.join("spallcast").join("demo-plant.sqlite"),
         None => PathBuf::from("spallcast-demo-plant.sqlite"),
@@ -50,7 +54,10 @@ pub fn default_db_path() -> PathBuf {
 
 /// Creates the demo database at `db` unless a file is already there. Returns the report when it
 /// created one.
-pub fn ensure_demo_database(db: &Path, progress: &mut dyn FnMut(&str, usize, usize)) -> Result<Option<DemoReport>> {
+pub fn ensure_demo_database(
+    db: &Path,
+    progress: &mut dyn FnMut(&str, usize, usize),
+) -> Result<Option<DemoReport>> {
     if db.exists() {
         return Ok(None);
     }
@@ -61,23 +68,29 @@ pub fn ensure_demo_database(db: &Path, progress: &mut dyn FnMut(&str, usize, usi
 /// demo plant file and imports every day in date order. The database is built under a temporary name
 /// beside `db` and renamed into place when complete, so an interrupted run never leaves a partial demo
 /// database behind. `progress(step, done, total)` reports each step.
-pub fn create_demo_database(db: &Path, progress: &mut dyn FnMut(&str, usize, usize)) -> Result<DemoReport> {
+pub fn create_demo_database(
+    db: &Path,
+    progress: &mut dyn FnMut(&str, usize, usize),
+) -> Result<DemoReport> {
     if let Some(parent) = db.parent().filter(|p| !p.as_os_str().is_empty()) {
-        std::fs::create_dir_all(parent).with_context(|| format!("cannot create the folder {}", parent.display()))?;
+        std::fs::create_dir_all(parent)
+            .with_context(|| format!("cannot create the folder {}", parent.display()))?;
     }
     let partial = sibling(db, ".partial");
     remove_db_files(&partial)?;
 
     let started = Instant::now();
     progress("simulating route days", 0, 1);
-    let routes = tempfile::tempdir().context("cannot create a temporary folder for the demo routes")?;
+    let routes =
+        tempfile::tempdir().context("cannot create a temporary folder for the demo routes")?;
     let demo = generate_demo_routes_from_str(PLANT_TOML, SCENARIO_TOML, routes.path())
         .context("simulating the demo plant's route days failed")?;
     progress("simulating route days", 1, 1);
     let generate_secs = started.elapsed().as_secs_f64();
 
     let started = Instant::now();
-    let plant = PlantFile::parse(PLANT_TOML, Path::new("demo-plant/plant.toml")).context("the demo plant file is invalid")?;
+    let plant = PlantFile::parse(PLANT_TOML, Path::new("demo-plant/plant.toml"))
+        .context("the demo plant file is invalid")?;
     let mut readings = 0;
     let mut rejected = Vec::new();
     {
@@ -92,18 +105,34 @@ pub fn create_demo_database(db: &Path, progress: &mut dyn FnMut(&str, usize, usi
         }
         progress("importing route days", total, total);
         progress("assessing stages", 0, 1);
-        crate::assess::assess_store(&mut store, &spallcast_analysis::stage::StageOptions::default())
-            .context("assessing the demo plant's bearing stages failed")?;
+        crate::assess::assess_store(
+            &mut store,
+            &spallcast_analysis::stage::StageOptions::default(),
+        )
+        .context("assessing the demo plant's bearing stages failed")?;
         progress("assessing stages", 1, 1);
     }
     let import_secs = started.elapsed().as_secs_f64();
 
     remove_db_files(db)?;
-    std::fs::rename(&partial, db).with_context(|| format!("cannot move the new demo database into place: {}", db.display()))?;
+    std::fs::rename(&partial, db).with_context(|| {
+        format!(
+            "cannot move the new demo database into place: {}",
+            db.display()
+        )
+    })?;
     let truth_csv = sibling(db, ".truth.csv");
     std::fs::write(&truth_csv, truth_table(&demo.truth))
         .with_context(|| format!("cannot write the simulator truth: {}", truth_csv.display()))?;
-    Ok(DemoReport { db: db.to_path_buf(), truth_csv, route_days: demo.route_dirs.len(), readings, rejected, generate_secs, import_secs })
+    Ok(DemoReport {
+        db: db.to_path_buf(),
+        truth_csv,
+        route_days: demo.route_dirs.len(),
+        readings,
+        rejected,
+        generate_secs,
+        import_secs,
+    })
 }
 
 fn sibling(db: &Path, suffix: &str) -> PathBuf {
@@ -129,7 +158,18 @@ fn truth_table(rows: &[spallcast_simulate::TruthRow]) -> String {
     let mut out = String::from("date,file,point,machine,bearing,stage,fault,severity\n");
     for r in rows {
         let fault = r.fault.map_or_else(String::new, |f| format!("{f:?}"));
-        let _ = writeln!(out, "{},{},{},{},{},{},{},{:.3}", r.date, r.file, r.point, r.machine, r.bearing, r.stage.get(), fault, r.severity);
+        let _ = writeln!(
+            out,
+            "{},{},{},{},{},{},{},{:.3}",
+            r.date,
+            r.file,
+            r.point,
+            r.machine,
+            r.bearing,
+            r.stage.get(),
+            fault,
+            r.severity
+        );
     }
     out
 }

@@ -10,6 +10,10 @@ use spallcast_analysis::{
 
 /// Arguments of `spallcast diagnose`.
 #[derive(Debug, clap::Args)]
+#[allow(
+    clippy::struct_excessive_bools,
+    reason = "each bool is an independent command-line switch"
+)]
 pub struct DiagnoseArgs {
     /// The recording to diagnose (WAV: PCM 8/16/24/32-bit integer or 32-bit float; samples in g, integer
     /// full scale = `--full-scale-g`).
@@ -145,7 +149,7 @@ fn parse_geometry(text: &str) -> anyhow::Result<FaultFactors> {
         pitch_diameter: v[2],
         contact_angle_deg: v[3],
     };
-    Ok(g.factors().context("--geometry")?)
+    g.factors().context("--geometry")
 }
 
 fn parse_factors(text: &str) -> anyhow::Result<FaultFactors> {

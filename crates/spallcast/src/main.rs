@@ -8,6 +8,7 @@ mod bearings_cmd;
 mod demo_cmd;
 mod diagnose_cmd;
 mod import_cmd;
+mod plan_cmd;
 
 use std::path::PathBuf;
 use std::process::ExitCode;
@@ -41,6 +42,8 @@ enum Command {
     Bearings(bearings_cmd::BearingsArgs),
     /// One bearing's history of stage calls with their evidence.
     Bearing(bearings_cmd::BearingArgs),
+    /// Outage planning: export the replacement list for the planner (CSV, iCalendar, HTML).
+    Plan(plan_cmd::PlanArgs),
     /// (Re)create the demo plant database: an invented site with 18 simulated monthly route days.
     Demo(demo_cmd::DemoArgs),
 }
@@ -49,9 +52,12 @@ fn main() -> ExitCode {
     let cli = Cli::parse();
     let result = match cli.command {
         Some(Command::Diagnose(args)) => diagnose_cmd::run(&args),
-        Some(Command::Import(args)) => import_cmd::run(&args, analyzer::default_analyzer().as_ref()),
+        Some(Command::Import(args)) => {
+            import_cmd::run(&args, analyzer::default_analyzer().as_ref())
+        }
         Some(Command::Bearings(args)) => bearings_cmd::run_bearings(&args),
         Some(Command::Bearing(args)) => bearings_cmd::run_bearing(&args),
+        Some(Command::Plan(args)) => plan_cmd::run(&args),
         Some(Command::Demo(args)) => demo_cmd::run(&args),
         None => demo_cmd::open_window(cli.db),
     };

@@ -1,4 +1,9 @@
 //! `spallcast import` on the command line: JSON summary, --plant, exit codes and clear errors.
+#![allow(
+    clippy::unwrap_used,
+    clippy::expect_used,
+    reason = "test code: a failure is the test failing"
+)]
 #[path = "import_common.rs"]
 mod import_common;
 

@@ -1,4 +1,8 @@
 //! Helpers shared by the import command's tests (included with `#[path]`).
+#![allow(
+    clippy::expect_used,
+    reason = "test code: a failure is the test failing"
+)]
 #![allow(dead_code, clippy::unwrap_used)]
 
 use std::fmt::Write as _;

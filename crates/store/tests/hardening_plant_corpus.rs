@@ -32,7 +32,11 @@ fn inputs() -> Vec<(PathBuf, Vec<u8>)> {
         }
     }
     out.sort();
-    assert!(out.len() >= 3, "expected a committed plant-file fuzz corpus, found {} files", out.len());
+    assert!(
+        out.len() >= 3,
+        "expected a committed plant-file fuzz corpus, found {} files",
+        out.len()
+    );
     out
 }
 
@@ -58,9 +62,17 @@ fn plant_file_corpus_and_regressions() {
             Ok(plant) => {
                 let first = plant.to_toml().unwrap();
                 let again = PlantFile::parse(&first, path).unwrap_or_else(|e| {
-                    panic!("input {}: exported plant file does not parse: {e}\n{first}", source.display())
+                    panic!(
+                        "input {}: exported plant file does not parse: {e}\n{first}",
+                        source.display()
+                    )
                 });
-                assert_eq!(first, again.to_toml().unwrap(), "input {}: export not stable", source.display());
+                assert_eq!(
+                    first,
+                    again.to_toml().unwrap(),
+                    "input {}: export not stable",
+                    source.display()
+                );
                 ok += 1;
             }
         }

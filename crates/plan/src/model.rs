@@ -1,0 +1,142 @@
+//! The plain data the planning logic works on: outages, bearing lives with their forecast, plan entries.
+//!
+//! These structs carry no database handle. The store adapter ([`crate::source`]) fills them; tests and the
+//! window may build them by hand.
+
+use chrono::NaiveDate;
+use serde::{Deserialize, Serialize};
+
+/// A planned plant outage: the stop during which machines are down and bearings can be changed.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Outage {
+    /// Database id (any unique number when built by hand).
+    pub id: i64,
+    /// Name, unique in the plant (e.g. "Spring intake shutdown").
+    pub name: String,
+    /// First day of the outage.
+    pub start: NaiveDate,
+    /// Last day of the outage (inclusive).
+    pub end: NaiveDate,
+    /// Areas taken down, by name.
+    pub areas: Vec<String>,
+    /// Extra machines taken down, by plant id (e.g. "IN-P1").
+    pub machines: Vec<String>,
+}
+
+impl Outage {
+    /// True when the outage takes the machine down: its area is listed, or the machine itself is.
+    pub fn takes_down(&self, machine_id: &str, area: &str) -> bool {
+        self.areas.iter().any(|a| a == area) || self.machines.iter().any(|m| m == machine_id)
+    }
+
+    /// Length in days, counting both ends.
+    pub fn days(&self) -> i64 {
+        (self.end - self.start).num_days() + 1
+    }
+}
+
+/// One life of a bearing at a machine position (one installed bearing, from fitting to removal).
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct BearingLife {
+    /// Database id of the life.
+    pub life_id: i64,
+    /// Machine id in the plant file (e.g. "IN-P1").
+    pub machine_id: String,
+    /// Machine name (e.g. "Intake pump 1").
+    pub machine_name: String,
+    /// Area the machine stands in.
+    pub area: String,
+    /// Bearing position on the machine (e.g. "MNDE").
+    pub position: String,
+    /// Bearing type designation.
+    pub bearing_type: String,
+    /// "grease" or "oil".
+    pub lubrication: String,
+    /// Date this life began.
+    pub installed: NaiveDate,
+}
+
+impl BearingLife {
+    /// A short label: `machine position` (e.g. "IN-P1 MNDE").
+    pub fn label(&self) -> String {
+        format!("{} {}", self.machine_id, self.position)
+    }
+}
+
+/// The latest stage call and forecast for a bearing life.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Forecast {
+    /// Stage of rolling-element bearing failure, 0 (no sign) to 4.
+    pub stage: u8,
+    /// The evidence behind the call, in words.
+    pub evidence: String,
+    /// Replace by this date: the end of the best window (between stage 2 and stage 3).
+    pub replace_by: NaiveDate,
+    /// From this date the bearing is at risk of failing in service.
+    pub risk_from: NaiveDate,
+}
+
+/// A bearing life that needs a replacement slot: the life and its forecast.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct BearingNeed {
+    /// The bearing life.
+    pub life: BearingLife,
+    /// Its forecast.
+    pub forecast: Forecast,
+}
+
+/// State of a planned replacement.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum PlanStatus {
+    /// To be done in the outage.
+    Planned,
+    /// Done: the life was closed and a new one started.
+    Done,
+    /// Called off.
+    Cancelled,
+}
+
+impl PlanStatus {
+    /// The word stored in the database and written to exports.
+    pub fn as_str(self) -> &'static str {
+        match self {
+            Self::Planned => "planned",
+            Self::Done => "done",
+            Self::Cancelled => "cancelled",
+        }
+    }
+
+    /// Parses the stored word.
+    pub fn parse(word: &str) -> Option<Self> {
+        match word {
+            "planned" => Some(Self::Planned),
+            "done" => Some(Self::Done),
+            "cancelled" => Some(Self::Cancelled),
+            _ => None,
+        }
+    }
+}
+
+impl std::fmt::Display for PlanStatus {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(self.as_str())
+    }
+}
+
+/// A bearing replacement placed in an outage.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct PlanEntry {
+    /// Database id of the entry.
+    pub id: i64,
+    /// The outage it is planned in.
+    pub outage_id: i64,
+    /// Planned, done or cancelled.
+    pub status: PlanStatus,
+    /// Free note from the planner.
+    pub note: String,
+    /// The bearing life being replaced.
+    pub life: BearingLife,
+    /// Its forecast when one exists (a life closed by a done replacement may have none).
+    pub forecast: Option<Forecast>,
+}

@@ -1,0 +1,363 @@
+//! The adapter between the store and the planning logic: reads a [`PlanBoard`] and the report pictures,
+//! and writes plan changes back.
+//!
+//! Forecast dates come from the stored stage calls (see [`stored_forecasts`]); callers that hold
+//! forecasts of their own pass them to [`load_board_with`].
+
+use std::collections::{BTreeMap, HashMap};
+
+use chrono::NaiveDate;
+use spallcast_analysis::spectrum::{Detector, Quantity, SpectrumEngine, SpectrumUnits};
+use spallcast_analysis::window::Window;
+use spallcast_store::{BearingState, OutageInput, Store};
+
+use crate::board::PlanBoard;
+use crate::error::{PlanError, Result};
+use crate::html::{BearingImages, ImagesByLife, SpectrumImage, TrendImage};
+use crate::model::{BearingLife, BearingNeed, Forecast, Outage, PlanEntry, PlanStatus};
+
+/// Bearings at or above this stage are offered for a slot. Stage 1 shows only ultrasonic-band energy;
+/// the replacement window opens at stage 2 (common practice, no source; REFERENCES §9), but a stage-1
+/// bearing with a forecast is listed too so the planner sees it coming.
+pub const MIN_STAGE_FOR_SLOT: u8 = 1;
+
+/// The scalar trended in the report, with a fallback when it is absent.
+pub const TREND_SCALARS: [(&str, &str, &str); 2] = [
+    ("velocity_rms_mm_s", "velocity RMS", "mm/s"),
+    ("accel_rms_g", "acceleration RMS", "g"),
+];
+
+/// A change the planner makes; the calendar view returns these and [`apply_change`] writes them.
+#[derive(Debug, Clone, PartialEq)]
+pub enum PlanChange {
+    /// Plan a bearing life into an outage (moving it out of any other outage it was planned in).
+    Assign {
+        /// Bearing life.
+        life_id: i64,
+        /// Target outage.
+        outage_id: i64,
+    },
+    /// Take a planned replacement out of its outage.
+    Unplan {
+        /// Plan entry.
+        entry_id: i64,
+    },
+    /// Call off a planned replacement, keeping the record.
+    Cancel {
+        /// Plan entry.
+        entry_id: i64,
+        /// Why.
+        note: String,
+    },
+    /// The replacement was done: close the life and start a new one on `replaced_on`.
+    MarkDone {
+        /// Plan entry.
+        entry_id: i64,
+        /// Day the new bearing went in.
+        replaced_on: NaiveDate,
+        /// What was found on the removed bearing.
+        found: String,
+    },
+    /// Add an outage.
+    AddOutage(OutageInput),
+    /// Change an outage.
+    UpdateOutage {
+        /// Outage id.
+        id: i64,
+        /// New values.
+        outage: OutageInput,
+    },
+    /// Delete an outage (and its plan entries).
+    DeleteOutage {
+        /// Outage id.
+        id: i64,
+    },
+}
+
+/// Writes one change; returns a sentence for the status line.
+pub fn apply_change(store: &mut Store, change: &PlanChange) -> Result<String> {
+    Ok(match change {
+        PlanChange::Assign { life_id, outage_id } => {
+            let entry = store.plan_life(*life_id, *outage_id, "")?;
+            // Moving: the life is planned in one outage at a time.
+            for other in store.plan_entries(None)? {
+                if other.life_id == *life_id
+                    && other.id != entry
+                    && other.status == spallcast_store::PlanStatus::Planned
+                {
+                    store.unplan(other.id)?;
+                }
+            }
+            format!("planned bearing life {life_id} in outage {outage_id}")
+        }
+        PlanChange::Unplan { entry_id } => {
+            store.unplan(*entry_id)?;
+            format!("removed plan entry {entry_id}")
+        }
+        PlanChange::Cancel { entry_id, note } => {
+            store.cancel_plan(*entry_id, note)?;
+            format!("cancelled plan entry {entry_id}")
+        }
+        PlanChange::MarkDone {
+            entry_id,
+            replaced_on,
+            found,
+        } => {
+            let new_life = store.mark_done(*entry_id, *replaced_on, found)?;
+            format!("replacement done on {replaced_on}; new bearing life {new_life} started")
+        }
+        PlanChange::AddOutage(o) => {
+            let id = store.add_outage(o)?;
+            format!("added outage \"{}\" (id {id})", o.name)
+        }
+        PlanChange::UpdateOutage { id, outage } => {
+            store.update_outage(*id, outage)?;
+            format!("saved outage \"{}\"", outage.name)
+        }
+        PlanChange::DeleteOutage { id } => {
+            store.delete_outage(*id)?;
+            format!("deleted outage {id}")
+        }
+    })
+}
+
+/// Bearing details by position id (bearing type from the plant tree).
+fn bearing_types(store: &Store) -> Result<HashMap<i64, String>> {
+    let tree = store.plant_tree()?;
+    Ok(tree
+        .areas
+        .iter()
+        .flat_map(|a| a.machines.iter())
+        .flat_map(|m| m.bearings.iter())
+        .map(|b| (b.position_id, b.bearing_type.clone()))
+        .collect())
+}
+
+fn life_of(
+    state: &BearingState,
+    bearing_type: &str,
+    life_id: i64,
+    installed: NaiveDate,
+) -> BearingLife {
+    BearingLife {
+        life_id,
+        machine_id: state.machine.clone(),
+        machine_name: state.machine_name.clone(),
+        area: state.area.clone(),
+        position: state.position.clone(),
+        bearing_type: bearing_type.to_owned(),
+        lubrication: state.lubrication.as_str().to_owned(),
+        installed,
+    }
+}
+
+/// The current (open) bearing life of every position.
+pub fn current_lives(store: &Store) -> Result<Vec<BearingLife>> {
+    let types = bearing_types(store)?;
+    let states = store.latest_states()?;
+    Ok(states
+        .iter()
+        .filter_map(|s| {
+            let life = s.life.as_ref().filter(|l| l.removed.is_none())?;
+            let bt = types.get(&s.position_id).map_or("", String::as_str);
+            Some(life_of(s, bt, life.id, life.installed))
+        })
+        .collect())
+}
+
+/// Forecasts of current lives read from their latest stage call: the call must be on a reading of
+/// that life and carry `replace_by` and `risk_from` dates (`YYYY-MM-DD`, at the top level of the
+/// evidence document or under `forecast`). Its `evidence` sentences (an array of strings, or a string)
+/// become the evidence text. Lives without such a call are left out.
+pub fn stored_forecasts(store: &Store) -> Result<BTreeMap<i64, Forecast>> {
+    let mut out = BTreeMap::new();
+    for state in store.latest_states()? {
+        let (Some(life), Some(call)) = (state.life.as_ref(), state.latest_stage.as_ref()) else {
+            continue;
+        };
+        if life.removed.is_some() || store.reading(call.reading_id)?.life_id != Some(life.id) {
+            continue;
+        }
+        if let Some(f) = forecast_from_document(call.stage, &call.evidence) {
+            out.insert(life.id, f);
+        }
+    }
+    Ok(out)
+}
+
+/// Reads a forecast from a stage-call document (see [`stored_forecasts`]).
+pub fn forecast_from_document(stage: u8, doc: &serde_json::Value) -> Option<Forecast> {
+    let date = |key: &str| {
+        doc.get(key)
+            .or_else(|| doc.get("forecast").and_then(|f| f.get(key)))
+            .and_then(serde_json::Value::as_str)
+            .and_then(|s| s.get(..10))
+            .and_then(|s| s.parse::<NaiveDate>().ok())
+    };
+    let evidence = match doc.get("evidence") {
+        Some(serde_json::Value::Array(items)) => items
+            .iter()
+            .filter_map(serde_json::Value::as_str)
+            .collect::<Vec<_>>()
+            .join("; "),
+        Some(serde_json::Value::String(s)) => s.clone(),
+        _ => String::new(),
+    };
+    Some(Forecast {
+        stage,
+        evidence,
+        replace_by: date("replace_by")?,
+        risk_from: date("risk_from")?,
+    })
+}
+
+/// Reads the board with the forecasts stored in the database.
+pub fn load_board(store: &Store, today: NaiveDate) -> Result<PlanBoard> {
+    let forecasts = stored_forecasts(store)?;
+    load_board_with(store, today, &forecasts)
+}
+
+/// Reads the board, taking forecasts (by life id) from the caller.
+pub fn load_board_with(
+    store: &Store,
+    today: NaiveDate,
+    forecasts: &BTreeMap<i64, Forecast>,
+) -> Result<PlanBoard> {
+    let types = bearing_types(store)?;
+    let states = store.latest_states()?;
+    let by_place: HashMap<(&str, &str), &BearingState> = states
+        .iter()
+        .map(|s| ((s.machine.as_str(), s.position.as_str()), s))
+        .collect();
+    let outages = store
+        .outages()?
+        .into_iter()
+        .map(|o| Outage {
+            id: o.id,
+            name: o.name,
+            start: o.start,
+            end: o.end,
+            areas: o.areas,
+            machines: o.machines,
+        })
+        .collect();
+    let needs = current_lives(store)?
+        .into_iter()
+        .filter_map(|life| {
+            let forecast = forecasts
+                .get(&life.life_id)
+                .filter(|f| f.stage >= MIN_STAGE_FOR_SLOT)?
+                .clone();
+            Some(BearingNeed { life, forecast })
+        })
+        .collect();
+    let mut entries = Vec::new();
+    for e in store.plan_entries(None)? {
+        let Some(state) = by_place.get(&(e.machine.as_str(), e.position.as_str())) else {
+            return Err(PlanError::Invalid(format!(
+                "plan entry {} names an unknown bearing position",
+                e.id
+            )));
+        };
+        let installed = store
+            .lives(state.position_id)?
+            .into_iter()
+            .find(|l| l.id == e.life_id)
+            .map_or(NaiveDate::MIN, |l| l.installed);
+        let bt = types.get(&state.position_id).map_or("", String::as_str);
+        entries.push(PlanEntry {
+            id: e.id,
+            outage_id: e.outage_id,
+            status: PlanStatus::parse(e.status.as_str()).unwrap_or(PlanStatus::Planned),
+            note: e.note,
+            life: life_of(state, bt, e.life_id, installed),
+            forecast: forecasts.get(&e.life_id).cloned(),
+        });
+    }
+    let mut board = PlanBoard {
+        today,
+        outages,
+        needs,
+        entries,
+    };
+    board.normalise();
+    Ok(board)
+}
+
+/// The lives the report shows: planned or done in an outage, or still needing a slot.
+fn report_lives(board: &PlanBoard) -> Vec<i64> {
+    let mut lives: Vec<i64> = board
+        .entries
+        .iter()
+        .filter(|e| e.status != PlanStatus::Cancelled)
+        .map(|e| e.life.life_id)
+        .chain(board.needs.iter().map(|n| n.life.life_id))
+        .collect();
+    lives.sort_unstable();
+    lives.dedup();
+    lives
+}
+
+/// Report pictures: for each life on the report, the trend of [`TREND_SCALARS`] at the point of its
+/// latest reading, and the acceleration amplitude spectrum of that reading's stored waveform (Hann
+/// window, averaged segments of up to 8192 samples, peak lines in g) computed with the analysis crate.
+/// A life without readings gets no pictures; a waveform too short for a spectrum gets only a trend.
+pub fn load_images(store: &Store, board: &PlanBoard) -> Result<ImagesByLife> {
+    let mut engine = SpectrumEngine::new();
+    let mut out = ImagesByLife::new();
+    for life_id in report_lives(board) {
+        let mut images = BearingImages::default();
+        for (scalar, name, units) in TREND_SCALARS {
+            let series = store.trend(life_id, scalar)?;
+            let Some(last) = series.last() else { continue };
+            let point = last.point.clone();
+            images.trend = Some(TrendImage {
+                name: format!("{name} at {point}"),
+                units: units.to_owned(),
+                points: series
+                    .iter()
+                    .filter(|p| p.point == point)
+                    .map(|p| (p.taken_at.date_naive(), p.value))
+                    .collect(),
+            });
+            if let Some(w) = store.waveforms(&[last.reading_id])?.into_iter().next() {
+                images.spectrum = spectrum_image(&mut engine, &w);
+            }
+            break;
+        }
+        out.insert(life_id, images);
+    }
+    Ok(out)
+}
+
+fn spectrum_image(
+    engine: &mut SpectrumEngine,
+    w: &spallcast_store::Waveform,
+) -> Option<SpectrumImage> {
+    let samples: Vec<f64> = w.samples_g.iter().map(|&v| f64::from(v)).collect();
+    if samples.len() < 64 {
+        return None;
+    }
+    let segment = spallcast_analysis::spectrum::fast_len_at_most(samples.len().min(8192));
+    let units = SpectrumUnits {
+        quantity: Quantity::AccelerationG,
+        detector: Detector::Peak,
+    };
+    let s = engine
+        .amplitude_spectrum(
+            &samples,
+            w.meta.sample_rate_hz,
+            segment,
+            Window::Hann,
+            units,
+            0.0,
+        )
+        .ok()?;
+    Some(SpectrumImage {
+        taken_at: w.meta.taken_at.format("%Y-%m-%d %H:%M %:z").to_string(),
+        point: w.meta.point.clone(),
+        freq_hz: (0..s.values.len()).map(|i| s.freq_hz(i)).collect(),
+        amplitude: s.values,
+        units: "g peak".to_owned(),
+    })
+}

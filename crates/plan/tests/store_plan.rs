@@ -1,0 +1,221 @@
+//! The plan over a real (temporary) database: assigning, moving, marking done, outage edits, export.
+
+mod common;
+
+use std::collections::BTreeMap;
+
+use chrono::{TimeZone, Utc};
+use common::{d, plant_store};
+use spallcast_plan::source::{PlanChange, apply_change, current_lives, load_board_with};
+use spallcast_plan::{ExportFormat, Forecast, PlanStatus, export_database};
+use spallcast_store::OutageInput;
+
+fn forecasts(lives: &[(i64, &str, &str)]) -> BTreeMap<i64, Forecast> {
+    lives
+        .iter()
+        .map(|&(id, rb, rf)| {
+            (
+                id,
+                Forecast {
+                    stage: 2,
+                    evidence: "defect tones".into(),
+                    replace_by: d(rb),
+                    risk_from: d(rf),
+                },
+            )
+        })
+        .collect()
+}
+
+#[test]
+fn assign_move_and_mark_done_persist_and_start_a_new_life() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("plant.db");
+    let mut store = plant_store(&path);
+    let lives = current_lives(&store).unwrap();
+    assert_eq!(lives.len(), 3);
+    let p1 = lives
+        .iter()
+        .find(|l| l.machine_id == "IN-P1")
+        .unwrap()
+        .clone();
+    assert_eq!(p1.area, "Intake");
+    assert_eq!(p1.bearing_type, "TCX-209");
+    assert_eq!(p1.installed, d("2024-02-12"));
+    let fc = forecasts(&[(p1.life_id, "2027-04-20", "2027-06-01")]);
+    let today = d("2026-12-01");
+
+    let board = load_board_with(&store, today, &fc).unwrap();
+    assert_eq!(board.outages.len(), 3);
+    assert_eq!(board.open_needs().len(), 1);
+    let spring = board
+        .outages
+        .iter()
+        .find(|o| o.name == "Spring intake shutdown")
+        .unwrap()
+        .id;
+    let winter = board
+        .outages
+        .iter()
+        .find(|o| o.name == "Winter intake stop")
+        .unwrap()
+        .id;
+    // The suggestion is the last intake outage before 20 Apr: the spring shutdown.
+    assert_eq!(
+        board.suggestion(board.open_needs()[0]).map(|o| o.id),
+        Some(spring)
+    );
+
+    apply_change(
+        &mut store,
+        &PlanChange::Assign {
+            life_id: p1.life_id,
+            outage_id: winter,
+        },
+    )
+    .unwrap();
+    apply_change(
+        &mut store,
+        &PlanChange::Assign {
+            life_id: p1.life_id,
+            outage_id: spring,
+        },
+    )
+    .unwrap();
+    drop(store);
+
+    // Reopen: the plan persisted, and moving left one planned entry.
+    let mut store = spallcast_store::Store::open(&path).unwrap();
+    let board = load_board_with(&store, today, &fc).unwrap();
+    assert!(board.open_needs().is_empty());
+    assert!(board.tasks_in(winter).is_empty());
+    let tasks = board.tasks_in(spring);
+    assert_eq!(tasks.len(), 1);
+    assert_eq!(tasks[0].life.life_id, p1.life_id);
+    assert_eq!(tasks[0].status, PlanStatus::Planned);
+    let entry_id = tasks[0].id;
+
+    let msg = apply_change(
+        &mut store,
+        &PlanChange::MarkDone {
+            entry_id,
+            replaced_on: d("2027-03-09"),
+            found: "outer race spall".into(),
+        },
+    )
+    .unwrap();
+    assert!(msg.contains("new bearing life"), "{msg}");
+    let lives = current_lives(&store).unwrap();
+    let new_p1 = lives.iter().find(|l| l.machine_id == "IN-P1").unwrap();
+    assert_ne!(new_p1.life_id, p1.life_id, "a new life started");
+    assert_eq!(new_p1.installed, d("2027-03-09"));
+    let board = load_board_with(&store, today, &fc).unwrap();
+    let done = board.tasks_in(spring);
+    assert_eq!(done.len(), 1);
+    assert_eq!(done[0].status, PlanStatus::Done);
+    assert_eq!(done[0].life.life_id, p1.life_id);
+    // The old life's forecast no longer makes a need: the new life has none.
+    assert!(board.open_needs().is_empty());
+    // Done entries carry no warning.
+    assert!(board.entry_warnings(done[0]).is_empty());
+}
+
+#[test]
+fn outage_edits_go_through_the_store() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut store = plant_store(&dir.path().join("p.db"));
+    let input = OutageInput {
+        name: "Blower swap".into(),
+        start: d("2027-05-03"),
+        end: d("2027-05-04"),
+        areas: vec![],
+        machines: vec!["FI-B1".into(), "IN-P2".into()],
+    };
+    apply_change(&mut store, &PlanChange::AddOutage(input.clone())).unwrap();
+    let board = load_board_with(&store, d("2026-12-01"), &BTreeMap::new()).unwrap();
+    let o = board
+        .outages
+        .iter()
+        .find(|o| o.name == "Blower swap")
+        .unwrap();
+    assert_eq!(o.machines, vec!["FI-B1".to_owned(), "IN-P2".to_owned()]);
+    assert!(o.takes_down("IN-P2", "Intake"));
+    let id = o.id;
+    let mut changed = input.clone();
+    changed.end = d("2027-05-06");
+    apply_change(
+        &mut store,
+        &PlanChange::UpdateOutage {
+            id,
+            outage: changed,
+        },
+    )
+    .unwrap();
+    let board = load_board_with(&store, d("2026-12-01"), &BTreeMap::new()).unwrap();
+    assert_eq!(board.outage(id).unwrap().end, d("2027-05-06"));
+    // A bad outage is refused with a clear message and nothing changes.
+    let mut bad = input;
+    bad.name = "Backwards".into();
+    bad.end = d("2027-05-01");
+    let err = apply_change(&mut store, &PlanChange::AddOutage(bad)).unwrap_err();
+    assert!(err.to_string().contains("ends before it starts"), "{err}");
+    apply_change(&mut store, &PlanChange::DeleteOutage { id }).unwrap();
+    let board = load_board_with(&store, d("2026-12-01"), &BTreeMap::new()).unwrap();
+    assert_eq!(board.outages.len(), 3);
+}
+
+#[test]
+fn export_database_writes_each_format_from_the_store() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("plant.db");
+    let mut store = plant_store(&db);
+    let p2 = current_lives(&store)
+        .unwrap()
+        .into_iter()
+        .find(|l| l.machine_id == "IN-P2")
+        .unwrap();
+    let spring = store
+        .outages()
+        .unwrap()
+        .into_iter()
+        .find(|o| o.name.starts_with("Spring"))
+        .unwrap()
+        .id;
+    apply_change(
+        &mut store,
+        &PlanChange::Assign {
+            life_id: p2.life_id,
+            outage_id: spring,
+        },
+    )
+    .unwrap();
+    drop(store);
+    let now = Utc.with_ymd_and_hms(2026, 12, 1, 12, 0, 0).unwrap();
+    for format in [ExportFormat::Csv, ExportFormat::Ics, ExportFormat::Html] {
+        let out = dir.path().join(format!("plan.{}", format.extension()));
+        let summary = export_database(&db, format, &out, d("2026-12-01"), now).unwrap();
+        assert_eq!((summary.outages, summary.replacements), (3, 1));
+        let text = std::fs::read_to_string(&out).unwrap();
+        assert_eq!(summary.bytes, text.len());
+        assert!(text.contains("IN-P2"), "{format:?}: {text}");
+    }
+    let html = std::fs::read_to_string(dir.path().join("plan.html")).unwrap();
+    assert!(html.contains("Tallow Creek Water Works"));
+    assert!(
+        html.contains("No stored waveform"),
+        "no readings were imported"
+    );
+    // A database that does not exist is an error naming it, and nothing is written.
+    let missing = dir.path().join("nope.db");
+    let err = export_database(
+        &missing,
+        ExportFormat::Csv,
+        &dir.path().join("x.csv"),
+        d("2026-12-01"),
+        now,
+    )
+    .unwrap_err();
+    assert!(err.to_string().contains("nope.db"), "{err}");
+    assert!(!dir.path().join("x.csv").exists());
+    assert!(!missing.exists(), "the export must not create a database");
+}
