@@ -1,2 +1,58 @@
-//! Placeholder, replaced by the crate's real module tree.
+//! The Spallcast workstation window (eframe with the glow backend, egui_plot).
+//!
+//! Views are thin: they read view-model types ([`model`]) and push [`actions::Action`]s; the app applies
+//! the actions after layout. Everything slow (opening the database, loading a bearing, computing spectra,
+//! importing a route folder) runs on named worker threads ([`worker`]) that report through channels and
+//! wake the window with `request_repaint`. Spectra are computed once per reading by the analysis crate and
+//! cached; plots draw them decimated to screen columns (min/max per column, [`decimate`]).
+//!
+//! Views: "Since last route" (what changed since the previous route day, what is due, rejected files),
+//! "Spectra", "Life trend" and "Waveform" for the selected bearing. [`settings::View::OutagePlan`] is
+//! reserved for the outage-plan calendar.
+//!
+//! The window's calls are advisory: a caution line is always shown in the status bar and a notice on
+//! first run. Isolate and lock out machines before work; local codes and licensed practice prevail.
 #![forbid(unsafe_code)]
+
+pub mod actions;
+mod app;
+mod app_ui;
+pub mod cache;
+pub mod decimate;
+pub mod model;
+pub mod palette;
+pub mod panels;
+mod run;
+pub mod screenshot;
+pub mod settings;
+pub mod source;
+pub mod store_backend;
+pub mod worker;
+
+use std::path::Path;
+use std::sync::Arc;
+
+pub use app::{SpallcastApp, StartOptions, StatusMessage};
+pub use app_ui::{CAUTION_LINE, NOTICE_BUTTON, NOTICE_TITLE};
+pub use run::{SCREENSHOT_ENV, START_VIEW_ENV, check_display, options_from_env, run_window_with};
+pub use settings::View;
+pub use store_backend::StoreBackend;
+
+/// Opens the Spallcast window on the database at `db_path` (which must exist) and returns when the
+/// window is closed.
+///
+/// Set `SPALLCAST_START_VIEW` (changes, spectra, trend, waveform, plan) to choose the first view and
+/// `SPALLCAST_SCREENSHOT=file.png` to save a screenshot once the data has loaded and close.
+///
+/// # Errors
+/// No display (the message points to `spallcast --help` and the command-line subcommands), the window
+/// could not be created, or a bad environment value.
+pub fn run_window(db_path: &Path) -> anyhow::Result<()> {
+    run_window_with(db_path, Arc::new(default_backend()))
+}
+
+/// The backend `run_window` uses: the store, the analysis crate, and the store's route import with the
+/// pipeline's reading analyzer.
+pub fn default_backend() -> StoreBackend {
+    StoreBackend::with_analyzer(Arc::new(spallcast_pipeline::SpallcastAnalyzer))
+}

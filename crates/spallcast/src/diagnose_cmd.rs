@@ -19,7 +19,7 @@ pub struct DiagnoseArgs {
     /// full scale = `--full-scale-g`).
     pub file: PathBuf,
     /// Shaft speed at the bearing, r/min.
-    #[arg(long)]
+    #[arg(long, allow_negative_numbers = true)]
     pub rpm: f64,
     /// Bearing geometry: `n=9,d=0.3126,pitch=1.537,angle=0` (diameters in any one unit, angle in degrees).
     #[arg(long, conflicts_with = "factors", required_unless_present = "factors")]

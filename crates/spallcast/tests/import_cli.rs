@@ -50,7 +50,7 @@ fn json_summary_with_plant_rejects_and_reimport() {
             .unwrap()
             .contains("NOT-A-POINT")
     );
-    assert_eq!(s["analysis_version"], "interim-basic-stats");
+    assert_eq!(s["analysis_version"], spallcast_pipeline::ANALYZER_VERSION);
 
     let out = spallcast(&["import", r, "--db", d, "--json"]);
     assert!(

@@ -1,0 +1,34 @@
+//! What panels ask for. Panels push actions while drawing; the app applies them after layout.
+
+use std::path::PathBuf;
+
+use crate::model::{BearingKey, ReadingId};
+use crate::settings::View;
+
+/// A request from a panel to the app.
+#[derive(Debug, Clone, PartialEq)]
+#[must_use]
+pub enum Action {
+    /// Ask for a database file with a dialog, then open it.
+    OpenDatabaseDialog,
+    /// Open this database.
+    OpenDatabase(PathBuf),
+    /// Ask for a route folder with a dialog, then import it.
+    ImportDialog,
+    /// Import this route folder into the open database.
+    ImportFolder(PathBuf),
+    /// Select a bearing (and load its history).
+    SelectBearing(BearingKey),
+    /// Select a bearing and show one of its views.
+    OpenBearingView(BearingKey, View),
+    /// Switch view.
+    ShowView(View),
+    /// Compute (or fetch from cache) the spectra of these readings.
+    NeedSpectra(Vec<ReadingId>),
+    /// Load the samples of this reading.
+    NeedWaveform(ReadingId),
+    /// The user has read the cautions.
+    AcknowledgeCautions,
+    /// Close the import summary.
+    DismissImportSummary,
+}

@@ -1,0 +1,453 @@
+//! One bearing's spectra from chosen months, overlaid or stacked, with fault-frequency markers.
+
+use eframe::egui;
+use egui_plot::{Legend, Line, LineStyle, Plot, PlotPoints, Text, VLine};
+use spallcast_analysis::{FaultKind, FaultMarker, MarkerFamily, fault_markers};
+
+use crate::actions::Action;
+use crate::cache::{ReadingCache, Slot};
+use crate::decimate::{UniformSeries, decimate_minmax};
+use crate::model::{
+    BearingHistory, BearingKey, ReadingId, ReadingSummary, SharedSpectra, SpectrumKind,
+};
+use crate::palette;
+use crate::settings::{
+    AmplitudeScale, FreqAxis, Layout, MarkerSettings, SpectraSettings, fault_label,
+};
+
+/// Smallest amplitude drawn on the log scale (keeps log10 finite for empty lines).
+const LOG_FLOOR: f32 = 1e-9;
+
+/// Most marker labels drawn at once; beyond this only the lines are drawn.
+const MAX_MARKER_LABELS: usize = 40;
+
+/// What the last frame drew: for the status line, the tests and the bench.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct SpectraFrameSummary {
+    /// Readings drawn, oldest first.
+    pub drawn: Vec<ReadingId>,
+    /// Readings selected whose spectra are still being computed.
+    pub waiting: Vec<ReadingId>,
+    /// Markers drawn (label, frequency in Hz), in frequency order.
+    pub markers: Vec<(String, f64)>,
+    /// Plot points drawn in total (after decimation).
+    pub plotted_points: usize,
+}
+
+/// Cursor readout under the plot.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CursorReadout {
+    /// Frequency under the cursor, Hz.
+    pub freq_hz: f64,
+    /// Order of the newest reading's shaft speed.
+    pub order: f64,
+    /// Amplitude of the newest spectrum at that line.
+    pub amplitude: Option<f32>,
+    /// Nearest drawn marker and its distance in Hz.
+    pub nearest_marker: Option<(String, f64)>,
+}
+
+/// The spectra view of the selected bearing.
+#[derive(Debug, Default)]
+pub struct SpectraPanel {
+    /// The bearing the selection below belongs to.
+    bearing: Option<BearingKey>,
+    /// Measurement point shown.
+    pub point: Option<String>,
+    /// Readings overlaid, oldest first.
+    pub selected: Vec<ReadingId>,
+    /// What the last frame drew.
+    pub summary: SpectraFrameSummary,
+    /// Cursor readout of the last frame.
+    pub cursor: Option<CursorReadout>,
+}
+
+/// The default months of a point: the latest reading, the one before it, and the baseline (first
+/// reading of the latest reading's bearing life), oldest first.
+pub fn default_selection(history: &BearingHistory, point: &str) -> Vec<ReadingId> {
+    let readings: Vec<&ReadingSummary> = history.readings_of(point).collect();
+    let Some(&latest) = readings.last() else {
+        return Vec::new();
+    };
+    let life_start = history.life_start_for(latest.taken_at.date_naive());
+    let baseline = readings
+        .iter()
+        .find(|r| life_start.is_none_or(|d| r.taken_at.date_naive() >= d))
+        .or(readings.first());
+    let mut picked: Vec<&ReadingSummary> = baseline.into_iter().copied().collect();
+    if readings.len() >= 2 {
+        picked.push(readings[readings.len() - 2]);
+    }
+    picked.push(latest);
+    picked.sort_by_key(|r| r.taken_at);
+    let mut ids: Vec<ReadingId> = picked.iter().map(|r| r.id).collect();
+    ids.dedup();
+    ids
+}
+
+impl SpectraPanel {
+    /// Resets the month selection when another bearing's history arrives.
+    pub fn sync_bearing(&mut self, history: &BearingHistory) {
+        if self.bearing.as_ref() == Some(&history.key) {
+            return;
+        }
+        self.bearing = Some(history.key.clone());
+        self.point = history.points().into_iter().next();
+        self.selected = self
+            .point
+            .as_deref()
+            .map(|p| default_selection(history, p))
+            .unwrap_or_default();
+        self.summary = SpectraFrameSummary::default();
+        self.cursor = None;
+    }
+
+    /// Adds or removes a reading from the overlay, keeping time order.
+    pub fn toggle_reading(&mut self, history: &BearingHistory, id: ReadingId) {
+        if let Some(i) = self.selected.iter().position(|r| *r == id) {
+            self.selected.remove(i);
+        } else {
+            self.selected.push(id);
+            self.selected
+                .sort_by_key(|r| history.reading(*r).map(|s| s.taken_at));
+        }
+    }
+
+    /// Draws the view.
+    pub fn ui(
+        &mut self,
+        ui: &mut egui::Ui,
+        settings: &mut SpectraSettings,
+        history: &BearingHistory,
+        cache: &ReadingCache,
+        actions: &mut Vec<Action>,
+    ) {
+        self.sync_bearing(history);
+        controls_ui(ui, settings);
+        self.months_ui(ui, history);
+        markers_ui(ui, &mut settings.markers, history.factors.is_some());
+        let missing: Vec<ReadingId> = self
+            .selected
+            .iter()
+            .copied()
+            .filter(|id| !cache.spectra.contains_key(id))
+            .collect();
+        if !missing.is_empty() {
+            actions.push(Action::NeedSpectra(missing));
+        }
+        let mut failed = Vec::new();
+        let mut curves: Vec<(&ReadingSummary, SharedSpectra)> = Vec::new();
+        let mut waiting = Vec::new();
+        for id in &self.selected {
+            match (history.reading(*id), cache.spectra.get(id)) {
+                (Some(r), Some(Slot::Ready(s))) => curves.push((r, s.clone())),
+                (_, Some(Slot::Failed(e))) => failed.push(e.clone()),
+                _ => waiting.push(*id),
+            }
+        }
+        for e in &failed {
+            ui.colored_label(ui.visuals().error_fg_color, e);
+        }
+        if !waiting.is_empty() {
+            ui.horizontal(|ui| {
+                ui.spinner();
+                ui.label(format!("computing {} spectra…", waiting.len()));
+            });
+        }
+        let readout_height = 22.0;
+        let plot_height = (ui.available_height() - readout_height).max(120.0);
+        self.plot_ui(ui, settings, history, &curves, plot_height);
+        self.summary.waiting = waiting;
+        self.readout_ui(ui, settings.kind);
+    }
+
+    fn months_ui(&mut self, ui: &mut egui::Ui, history: &BearingHistory) {
+        let points = history.points();
+        ui.horizontal_wrapped(|ui| {
+            ui.label("Point:");
+            let current = self.point.clone().unwrap_or_default();
+            egui::ComboBox::from_id_salt("spectra-point")
+                .selected_text(&current)
+                .show_ui(ui, |ui| {
+                    for p in &points {
+                        if ui.selectable_label(*p == current, p.as_str()).clicked() && *p != current
+                        {
+                            self.point = Some(p.clone());
+                            self.selected = default_selection(history, p);
+                        }
+                    }
+                });
+            ui.label("Months:");
+            let Some(point) = self.point.clone() else {
+                return;
+            };
+            let days: Vec<(ReadingId, String, Option<u8>)> = history
+                .readings_of(&point)
+                .map(|r| (r.id, r.day_label(), r.stage))
+                .collect();
+            for (id, day, stage) in days {
+                let mut on = self.selected.contains(&id);
+                let response = ui.checkbox(&mut on, day);
+                let response = match stage {
+                    Some(s) => response.on_hover_text(format!("stage {s} at this reading")),
+                    None => response,
+                };
+                if response.changed() {
+                    self.toggle_reading(history, id);
+                }
+            }
+        });
+    }
+
+    fn plot_ui(
+        &mut self,
+        ui: &mut egui::Ui,
+        settings: &SpectraSettings,
+        history: &BearingHistory,
+        curves: &[(&ReadingSummary, SharedSpectra)],
+        height: f32,
+    ) {
+        let kind = settings.kind;
+        let axis = settings.axis;
+        let newest = curves.last();
+        let ref_shaft_hz = newest.map_or(0.0, |(r, _)| r.shaft_hz());
+        let max_x = curves
+            .iter()
+            .map(|(r, s)| axis.from_hz(s.get(kind).max_hz(), r.shaft_hz()))
+            .filter(|x| x.is_finite())
+            .fold(0.0_f64, f64::max);
+        let markers: Vec<FaultMarker> = match (history.factors, newest) {
+            (Some(f), Some((_, s))) if ref_shaft_hz > 0.0 => {
+                let m = &settings.markers;
+                fault_markers(
+                    &f.at_shaft_hz(ref_shaft_hz),
+                    m.harmonic_count,
+                    m.sideband_pairs,
+                    s.get(kind).max_hz(),
+                )
+                .into_iter()
+                .filter(|mk| marker_shown(m, mk))
+                .collect()
+            }
+            _ => Vec::new(),
+        };
+        let step = stack_step(settings, curves);
+        let scale = settings.scale;
+        let count = curves.len();
+        let mut plotted = 0;
+        let mut data_top = f64::MIN;
+        let plot = Plot::new(("spectra-plot", kind, axis, scale, settings.layout))
+            .height(height)
+            .legend(Legend::default())
+            .x_axis_label(axis.title())
+            .y_axis_label(kind.axis_title())
+            .auto_bounds(egui::Vec2b::new(false, true))
+            .default_x_bounds(0.0, if max_x > 0.0 { max_x } else { 1.0 })
+            .allow_boxed_zoom(true);
+        let plot = match (scale, settings.layout) {
+            (AmplitudeScale::Log, Layout::Overlay) => {
+                plot.y_axis_formatter(|mark, _| format!("{:.0e}", 10f64.powf(mark.value)))
+            }
+            (_, Layout::Stacked) => plot.show_axes(egui::Vec2b::new(true, false)),
+            _ => plot,
+        };
+        let marker_xs: Vec<(f64, &FaultMarker)> = markers
+            .iter()
+            .map(|m| (axis.from_hz(m.freq_hz, ref_shaft_hz), m))
+            .collect();
+        let response = plot.show(ui, |pui| {
+            let bounds = pui.plot_bounds();
+            let (x0, x1) = (bounds.min()[0], bounds.max()[0]);
+            let range = if x0.is_finite() && x1.is_finite() && x1 > x0 {
+                (x0, x1)
+            } else {
+                (0.0, max_x)
+            };
+            let columns = pui.transform().frame().width().max(16.0) as usize;
+            for (i, (reading, spectra)) in curves.iter().enumerate() {
+                let spectrum = spectra.get(kind);
+                let offset = step * i as f64;
+                let series = UniformSeries {
+                    x0: 0.0,
+                    dx: axis.from_hz(spectrum.df_hz, reading.shaft_hz()),
+                    y: &spectrum.amplitude,
+                };
+                let mut buf = Vec::with_capacity(2 * columns + 4);
+                match scale {
+                    AmplitudeScale::Linear => {
+                        decimate_minmax(series, range, columns, |v| f64::from(v) + offset, &mut buf)
+                    }
+                    AmplitudeScale::Log => {
+                        decimate_minmax(
+                            series,
+                            range,
+                            columns,
+                            |v| f64::from(v.max(LOG_FLOOR)).log10() + offset,
+                            &mut buf,
+                        );
+                    }
+                }
+                plotted += buf.len();
+                data_top = buf.iter().map(|p| p[1]).fold(data_top, f64::max);
+                let newest_curve = i + 1 == count;
+                pui.line(
+                    Line::new(reading.legend_label(), PlotPoints::new(buf))
+                        .color(palette::curve_colour(i, count))
+                        .width(if newest_curve { 1.6 } else { 1.0 }),
+                );
+            }
+            let visible: Vec<&(f64, &FaultMarker)> = marker_xs
+                .iter()
+                .filter(|(x, _)| *x >= range.0 && *x <= range.1)
+                .collect();
+            for (x, m) in &visible {
+                let colour = palette::fault_colour(marker_kind(m));
+                let line = VLine::new("", *x).color(colour.gamma_multiply(0.8));
+                let line = if matches!(m.family, MarkerFamily::Sideband(_)) {
+                    line.style(LineStyle::dashed_dense()).width(0.8)
+                } else {
+                    line.width(1.2)
+                };
+                pui.vline(line);
+            }
+            if data_top.is_finite() && visible.len() <= MAX_MARKER_LABELS {
+                for (x, m) in visible.iter().filter(|(_, m)| m.sideband == 0) {
+                    let colour = palette::fault_colour(marker_kind(m));
+                    pui.text(
+                        Text::new("", egui_plot::PlotPoint::new(*x, data_top), m.label.clone())
+                            .color(colour)
+                            .anchor(egui::Align2::LEFT_BOTTOM),
+                    );
+                }
+            }
+            pui.pointer_coordinate()
+        });
+        self.summary.drawn = curves.iter().map(|(r, _)| r.id).collect();
+        self.summary.markers = markers
+            .iter()
+            .map(|m| (m.label.clone(), m.freq_hz))
+            .collect();
+        self.summary.plotted_points = plotted;
+        self.cursor = response.inner.and_then(|p| {
+            let (_, spectra) = newest?;
+            let freq_hz = axis.to_hz(p.x, ref_shaft_hz);
+            let nearest = marker_xs
+                .iter()
+                .min_by(|a, b| (a.0 - p.x).abs().total_cmp(&(b.0 - p.x).abs()))
+                .map(|(_, m)| (m.label.clone(), freq_hz - m.freq_hz));
+            Some(CursorReadout {
+                freq_hz,
+                order: freq_hz / ref_shaft_hz,
+                amplitude: spectra.get(kind).amplitude_at(freq_hz),
+                nearest_marker: nearest,
+            })
+        });
+    }
+
+    fn readout_ui(&self, ui: &mut egui::Ui, kind: SpectrumKind) {
+        let text = match &self.cursor {
+            None => "Point at the plot for frequency, order, amplitude and the nearest marker. Drag to pan, \
+                     scroll to zoom, drag with the right button to zoom a box, double-click to reset."
+                .to_owned(),
+            Some(c) => {
+                let amp = c.amplitude.map_or_else(|| "–".to_owned(), |a| format!("{a:.4} {}", kind.unit()));
+                let near = c
+                    .nearest_marker
+                    .as_ref()
+                    .map_or_else(String::new, |(label, d)| format!("   nearest marker {label} ({d:+.2} Hz)"));
+                format!(
+                    "{:.2} Hz   {:.0} CPM   {:.3} orders   {amp}{near}",
+                    c.freq_hz,
+                    c.freq_hz * 60.0,
+                    c.order
+                )
+            }
+        };
+        ui.label(egui::RichText::new(text).monospace().small());
+    }
+}
+
+/// Vertical offset between stacked months: a little above the largest peak (linear) or two decades (log).
+fn stack_step(settings: &SpectraSettings, curves: &[(&ReadingSummary, SharedSpectra)]) -> f64 {
+    if settings.layout == Layout::Overlay {
+        return 0.0;
+    }
+    match settings.scale {
+        AmplitudeScale::Log => 2.0,
+        AmplitudeScale::Linear => {
+            let peak = curves
+                .iter()
+                .flat_map(|(_, s)| s.get(settings.kind).amplitude.iter().copied())
+                .filter(|v| v.is_finite())
+                .fold(0.0_f32, f32::max);
+            f64::from(peak) * 0.6
+        }
+    }
+}
+
+/// The fault family a marker belongs to (`None` for shaft harmonics).
+fn marker_kind(m: &FaultMarker) -> Option<FaultKind> {
+    match m.family {
+        MarkerFamily::Shaft => None,
+        MarkerFamily::Fault(k) | MarkerFamily::Sideband(k) => Some(k),
+    }
+}
+
+/// Whether the settings show this marker.
+pub fn marker_shown(settings: &MarkerSettings, m: &FaultMarker) -> bool {
+    match m.family {
+        MarkerFamily::Shaft => settings.shaft,
+        MarkerFamily::Fault(k) => settings.toggle(k).harmonics,
+        MarkerFamily::Sideband(k) => settings.toggle(k).sidebands,
+    }
+}
+
+fn markers_ui(ui: &mut egui::Ui, m: &mut MarkerSettings, factors_known: bool) {
+    ui.horizontal_wrapped(|ui| {
+        ui.label("Markers:");
+        if !factors_known {
+            ui.label(egui::RichText::new("bearing type unknown: no fault frequencies").italics());
+            return;
+        }
+        ui.checkbox(&mut m.shaft, "1x harmonics");
+        for kind in FaultKind::ALL {
+            let colour = palette::fault_colour(Some(kind));
+            let t = m.toggle_mut(kind);
+            ui.checkbox(
+                &mut t.harmonics,
+                egui::RichText::new(fault_label(kind)).color(colour),
+            );
+            ui.checkbox(&mut t.sidebands, format!("{} sidebands", fault_label(kind)));
+            ui.add_space(6.0);
+        }
+        ui.add(
+            egui::DragValue::new(&mut m.harmonic_count)
+                .range(1..=20)
+                .prefix("harmonics "),
+        );
+        ui.add(
+            egui::DragValue::new(&mut m.sideband_pairs)
+                .range(0..=5)
+                .prefix("sideband pairs "),
+        );
+    });
+}
+
+/// Spectrum kind, amplitude scale, frequency unit and layout.
+fn controls_ui(ui: &mut egui::Ui, settings: &mut SpectraSettings) {
+    ui.horizontal_wrapped(|ui| {
+        for kind in SpectrumKind::ALL {
+            ui.selectable_value(&mut settings.kind, kind, kind.label());
+        }
+        ui.separator();
+        ui.selectable_value(&mut settings.scale, AmplitudeScale::Linear, "Linear");
+        ui.selectable_value(&mut settings.scale, AmplitudeScale::Log, "Log");
+        ui.separator();
+        for axis in [FreqAxis::Hz, FreqAxis::Cpm, FreqAxis::Orders] {
+            ui.selectable_value(&mut settings.axis, axis, axis.label());
+        }
+        ui.separator();
+        ui.selectable_value(&mut settings.layout, Layout::Overlay, "Overlaid");
+        ui.selectable_value(&mut settings.layout, Layout::Stacked, "Stacked in time");
+    });
+}

@@ -1,0 +1,304 @@
+//! One bearing's life: stage indicators in dB over the life's first reading, the stage reached at each
+//! reading, replacements, the forecast, and overall velocity against the ISO 20816-3 zone lines.
+
+use chrono::{DateTime, NaiveDate};
+use eframe::egui;
+use egui_plot::{
+    HLine, Legend, Line, LineStyle, Plot, PlotPoint, PlotPoints, Points, Span, Text, VLine,
+};
+use spallcast_analysis::indicators::zone_boundaries_mm_s;
+use spallcast_analysis::stage::{db_over, keys};
+use spallcast_analysis::{MachineGroup, Support};
+
+use crate::model::{BearingHistory, BearingKey, ReadingSummary};
+use crate::palette;
+
+/// The stage indicators the trend offers, with their labels, in display order.
+pub const INDICATORS: [(&str, &str); 8] = [
+    (keys::HIGH_BAND_RMS_G, "high band RMS"),
+    (keys::RESONANCE_BAND_RMS_G, "resonance band RMS"),
+    (keys::ACCEL_RMS_G, "acceleration RMS"),
+    (keys::NOISE_FLOOR_G, "noise floor"),
+    (keys::KURTOSIS, "kurtosis"),
+    (keys::CREST_FACTOR, "crest factor"),
+    (keys::ONE_X_AMPLITUDE, "1x amplitude"),
+    (keys::VELOCITY_RMS_MM_S, "velocity RMS"),
+];
+
+/// Indicators drawn when the user has not chosen.
+pub const DEFAULT_INDICATORS: [&str; 4] = [
+    keys::HIGH_BAND_RMS_G,
+    keys::RESONANCE_BAND_RMS_G,
+    keys::ACCEL_RMS_G,
+    keys::KURTOSIS,
+];
+
+/// Overall velocity scalar names, newest convention first.
+const VELOCITY_KEYS: [&str; 2] = [keys::VELOCITY_RMS_MM_S, "velocity_rms_mm_s"];
+
+/// Seconds per day, for the date axis.
+const DAY_S: f64 = 86_400.0;
+
+/// What the last frame drew.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct TrendFrameSummary {
+    /// Indicator names drawn.
+    pub indicators: Vec<String>,
+    /// Readings with a stage numeral drawn.
+    pub staged_readings: usize,
+    /// Replacement lines drawn.
+    pub replacements: usize,
+    /// Whether the ISO zone lines were drawn.
+    pub zone_lines: bool,
+    /// Whether a forecast was drawn.
+    pub forecast: bool,
+}
+
+/// The life-trend view.
+#[derive(Debug, Default)]
+pub struct TrendPanel {
+    bearing: Option<BearingKey>,
+    /// Point shown.
+    pub point: Option<String>,
+    /// What the last frame drew.
+    pub summary: TrendFrameSummary,
+}
+
+fn day_of(r: &ReadingSummary) -> f64 {
+    r.taken_at.timestamp() as f64 / DAY_S
+}
+
+fn date_x(d: NaiveDate) -> f64 {
+    d.and_hms_opt(0, 0, 0)
+        .map_or(0.0, |t| t.and_utc().timestamp() as f64 / DAY_S)
+}
+
+fn date_label(x: f64) -> String {
+    DateTime::from_timestamp((x * DAY_S) as i64, 0)
+        .map_or_else(String::new, |t| t.format("%Y-%m-%d").to_string())
+}
+
+/// Hover text: the series name, the date and the value.
+fn hover_label(hover: &HoverPosition<'_>, unit: &str) -> Option<String> {
+    match hover {
+        HoverPosition::NearDataPoint {
+            plot_name,
+            position,
+            ..
+        } => Some(format!(
+            "{plot_name}\n{}  {:.2} {unit}",
+            date_label(position.x),
+            position.y
+        )),
+        HoverPosition::Elsewhere { position } => Some(format!(
+            "{}  {:.2} {unit}",
+            date_label(position.x),
+            position.y
+        )),
+    }
+}
+
+/// dB of `key` over the first reading of each life that has it; one point per reading.
+pub fn db_series(
+    history: &BearingHistory,
+    readings: &[&ReadingSummary],
+    key: &str,
+) -> Vec<[f64; 2]> {
+    let mut out = Vec::with_capacity(readings.len());
+    let mut base: Option<(Option<NaiveDate>, f64)> = None;
+    for r in readings {
+        let Some(v) = r.scalars.get(key).copied() else {
+            continue;
+        };
+        let life = history.life_start_for(r.taken_at.date_naive());
+        if base.is_none_or(|(l, _)| l != life) {
+            base = Some((life, v));
+        }
+        if let Some(db) = db_over(Some(v), base.map(|(_, b)| b)) {
+            out.push([day_of(r), db]);
+        }
+    }
+    out
+}
+
+impl TrendPanel {
+    /// Draws the view.
+    pub fn ui(&mut self, ui: &mut egui::Ui, chosen: &mut Vec<String>, history: &BearingHistory) {
+        if self.bearing.as_ref() != Some(&history.key) {
+            self.bearing = Some(history.key.clone());
+            self.point = history.points().into_iter().next();
+        }
+        let points = history.points();
+        let present: Vec<(&str, &str)> = INDICATORS
+            .iter()
+            .copied()
+            .filter(|(k, _)| history.readings.iter().any(|r| r.scalars.contains_key(*k)))
+            .collect();
+        if chosen.is_empty() {
+            chosen.extend(DEFAULT_INDICATORS.iter().map(|k| (*k).to_owned()));
+        }
+        ui.horizontal_wrapped(|ui| {
+            ui.label("Point:");
+            let current = self.point.clone().unwrap_or_default();
+            egui::ComboBox::from_id_salt("trend-point")
+                .selected_text(&current)
+                .show_ui(ui, |ui| {
+                    for p in &points {
+                        if ui.selectable_label(*p == current, p.as_str()).clicked() {
+                            self.point = Some(p.clone());
+                        }
+                    }
+                });
+            ui.label("Indicators:");
+            for (key, label) in &present {
+                let mut on = chosen.iter().any(|c| c == key);
+                if ui.checkbox(&mut on, *label).changed() {
+                    if on {
+                        chosen.push((*key).to_owned());
+                    } else {
+                        chosen.retain(|c| c != key);
+                    }
+                }
+            }
+        });
+        if present.is_empty() {
+            ui.label("These readings carry no stage indicators (they were analysed without the stage scalars).");
+        }
+        if history.stage_call.is_none() {
+            ui.label(egui::RichText::new("no stage call stored: indicators only").italics());
+        }
+        let Some(point) = self.point.clone() else {
+            ui.label("No readings for this bearing yet.");
+            return;
+        };
+        let readings: Vec<&ReadingSummary> = history.readings_of(&point).collect();
+        let link = egui::Id::new("trend-x-link");
+        let height = ((ui.available_height() - 8.0) * 0.6).max(140.0);
+        let mut summary = TrendFrameSummary::default();
+        Plot::new(("trend-db", &history.key))
+            .height(height)
+            .legend(Legend::default())
+            .link_axis(link, egui::Vec2b::new(true, false))
+            .x_axis_formatter(|m, _| date_label(m.value))
+            .y_axis_label("dB over the life's first reading")
+            .label_formatter(|hover| hover_label(hover, "dB"))
+            .show(ui, |pui| {
+                let mut top = 0.0_f64;
+                for (i, (key, label)) in present
+                    .iter()
+                    .filter(|(k, _)| chosen.iter().any(|c| c == k))
+                    .enumerate()
+                {
+                    let series = db_series(history, &readings, key);
+                    top = series.iter().map(|p| p[1]).fold(top, f64::max);
+                    let colour = palette::TREND_COLOURS[i % palette::TREND_COLOURS.len()];
+                    pui.points(
+                        Points::new("", PlotPoints::new(series.clone()))
+                            .color(colour)
+                            .radius(2.5),
+                    );
+                    pui.line(
+                        Line::new(*label, PlotPoints::new(series))
+                            .color(colour)
+                            .width(1.5),
+                    );
+                    summary.indicators.push((*key).to_owned());
+                }
+                for r in &readings {
+                    if let Some(stage) = r.stage {
+                        let text = egui::RichText::new(palette::stage_text(Some(stage))).strong();
+                        pui.text(
+                            Text::new("", PlotPoint::new(day_of(r), top + 4.0), text)
+                                .color(palette::stage_colour(Some(stage))),
+                        );
+                        summary.staged_readings += 1;
+                    }
+                }
+                for d in history.lives_started.iter().skip(1) {
+                    pui.vline(
+                        VLine::new("replacement", date_x(*d))
+                            .color(palette::REPLACEMENT_LINE)
+                            .width(1.5),
+                    );
+                    summary.replacements += 1;
+                }
+                if let Some(f) = &history.forecast {
+                    pui.span(
+                        Span::new("forecast interval", date_x(f.earliest)..=date_x(f.latest))
+                            .fill(palette::FORECAST.gamma_multiply(0.15)),
+                    );
+                    pui.vline(
+                        VLine::new(format!("replace by {}", f.replace_by), date_x(f.replace_by))
+                            .color(palette::FORECAST)
+                            .style(LineStyle::dashed_loose())
+                            .width(2.0),
+                    );
+                    summary.forecast = true;
+                }
+            });
+        summary.zone_lines = velocity_ui(ui, history, &readings, link);
+        self.summary = summary;
+    }
+}
+
+/// Overall velocity in mm/s with the ISO 20816-3 zone boundaries of the machine's group and support.
+fn velocity_ui(
+    ui: &mut egui::Ui,
+    history: &BearingHistory,
+    readings: &[&ReadingSummary],
+    link: egui::Id,
+) -> bool {
+    let Some(key) = VELOCITY_KEYS
+        .iter()
+        .find(|k| readings.iter().any(|r| r.scalars.contains_key(**k)))
+    else {
+        ui.label("No overall velocity stored for this point.");
+        return false;
+    };
+    let series: Vec<[f64; 2]> = readings
+        .iter()
+        .filter_map(|r| Some([day_of(r), *r.scalars.get(*key)?]))
+        .collect();
+    let group = MachineGroup::from_number(history.iso_group);
+    let support = if history.iso_flexible {
+        Support::Flexible
+    } else {
+        Support::Rigid
+    };
+    let mut drawn = false;
+    Plot::new(("trend-velocity", &history.key))
+        .height((ui.available_height() - 4.0).max(100.0))
+        .legend(Legend::default())
+        .link_axis(link, egui::Vec2b::new(true, false))
+        .x_axis_formatter(|m, _| date_label(m.value))
+        .y_axis_label("velocity RMS, mm/s")
+        .include_y(0.0)
+        .label_formatter(|hover| hover_label(hover, "mm/s"))
+        .show(ui, |pui| {
+            pui.points(
+                Points::new("", PlotPoints::new(series.clone()))
+                    .color(palette::TREND_COLOURS[0])
+                    .radius(2.5),
+            );
+            pui.line(
+                Line::new("overall velocity", PlotPoints::new(series))
+                    .color(palette::TREND_COLOURS[0]),
+            );
+            if let Some(group) = group {
+                let [ab, bc, cd] = zone_boundaries_mm_s(group, support);
+                for (name, v) in [
+                    ("ISO 20816-3 A/B", ab),
+                    ("ISO 20816-3 B/C", bc),
+                    ("ISO 20816-3 C/D", cd),
+                ] {
+                    pui.hline(
+                        HLine::new(name, v)
+                            .color(palette::ZONE_LINE)
+                            .style(LineStyle::dashed_loose()),
+                    );
+                }
+                drawn = true;
+            }
+        });
+    drawn
+}

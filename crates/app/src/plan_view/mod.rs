@@ -1,0 +1,250 @@
+//! The outage-plan calendar: planned outages over the coming months, each a drop zone listing the
+//! bearing replacements planned in it, and beside them the bearings that still need a slot, ordered by
+//! their replace-by date. A bearing is planned by dragging it onto an outage or by accepting the
+//! suggested outage; warnings are shown in words. Outages are added and edited in a small form.
+//!
+//! [`PlanView`] only draws a [`PlanBoard`] and returns [`PlanChange`]s; [`PlanPanel`] owns a board,
+//! applies the changes to the store with [`spallcast_plan::source::apply_change`] and reloads. Each change
+//! is one small transaction, so it runs on the UI thread; loading the board is a handful of indexed
+//! queries.
+
+mod cards_ui;
+mod outage_editor;
+
+use std::collections::BTreeMap;
+
+use chrono::NaiveDate;
+use eframe::egui;
+use spallcast_plan::source::{PlanChange, apply_change, load_board, load_board_with};
+use spallcast_plan::{Forecast, PlanBoard};
+use spallcast_store::Store;
+
+pub use outage_editor::OutageEditor;
+
+/// What is dragged: a bearing life.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct PlanDrag {
+    /// The bearing life being planned.
+    pub life_id: i64,
+}
+
+/// Colour of warning text (a dark amber, distinct from the stage ramp).
+pub const WARNING_TEXT: egui::Color32 = egui::Color32::from_rgb(0x8a, 0x3f, 0x00);
+
+/// Heading of the column of bearings without a slot.
+pub const NEEDS_HEADING: &str = "Bearings that need a slot (by replace-by date)";
+
+/// UI state of the calendar (no data: the board is passed in each frame).
+#[derive(Debug, Clone)]
+pub struct PlanView {
+    /// How far ahead outages are shown, in months.
+    pub horizon_months: u32,
+    /// The add/edit outage form.
+    pub editor: OutageEditor,
+    /// The plan entry whose "mark done" form is open, with its date and finding texts.
+    pub(crate) done_form: Option<(i64, String, String)>,
+}
+
+impl Default for PlanView {
+    fn default() -> Self {
+        Self {
+            horizon_months: 12,
+            editor: OutageEditor::default(),
+            done_form: None,
+        }
+    }
+}
+
+impl PlanView {
+    /// Draws the calendar and returns the changes the planner asked for this frame.
+    pub fn ui(&mut self, ui: &mut egui::Ui, board: &PlanBoard) -> Vec<PlanChange> {
+        let mut changes = Vec::new();
+        ui.horizontal(|ui| {
+            ui.heading("Outage plan");
+            ui.label(format!("as of {}", board.today));
+            ui.separator();
+            ui.label("Show the next");
+            ui.add(
+                egui::DragValue::new(&mut self.horizon_months)
+                    .range(1..=36)
+                    .suffix(" months"),
+            );
+        });
+        ui.label(
+            "Drag a bearing onto an outage, or accept the suggestion. Advice only: isolate and lock out before \
+             work; local codes and licensed practice prevail.",
+        );
+        ui.separator();
+        let horizon_days = i64::from(self.horizon_months) * 31;
+        ui.columns(2, |cols| {
+            if let [left, right] = cols {
+                egui::ScrollArea::vertical()
+                    .id_salt("plan_outages")
+                    .show(left, |ui| {
+                        self.outages_ui(ui, board, horizon_days, &mut changes);
+                    });
+                egui::ScrollArea::vertical()
+                    .id_salt("plan_needs")
+                    .show(right, |ui| {
+                        cards_ui::needs_ui(ui, board, &mut changes);
+                        ui.separator();
+                        self.editor.ui(ui, &mut changes);
+                    });
+            }
+        });
+        changes
+    }
+
+    fn outages_ui(
+        &mut self,
+        ui: &mut egui::Ui,
+        board: &PlanBoard,
+        horizon_days: i64,
+        changes: &mut Vec<PlanChange>,
+    ) {
+        let outages = board.coming_outages(horizon_days);
+        if outages.is_empty() {
+            ui.label("No planned outages in this period. Add one with the form on the right.");
+        }
+        for outage in outages {
+            let frame = egui::Frame::group(ui.style()).inner_margin(6.0);
+            let (_, dropped) = ui.dnd_drop_zone::<PlanDrag, ()>(frame, |ui| {
+                ui.set_min_width(ui.available_width());
+                cards_ui::outage_header_ui(ui, outage, &mut self.editor);
+                let tasks = board.tasks_in(outage.id);
+                if tasks.is_empty() {
+                    ui.weak("No replacements planned. Drop a bearing here.");
+                }
+                for entry in tasks {
+                    cards_ui::task_ui(ui, board, entry, &mut self.done_form, changes);
+                }
+            });
+            if let Some(drag) = dropped {
+                changes.push(PlanChange::Assign {
+                    life_id: drag.life_id,
+                    outage_id: outage.id,
+                });
+            }
+            ui.add_space(4.0);
+        }
+    }
+}
+
+/// The calendar with its data: a board read from the store, the view state and the last message.
+#[derive(Debug, Clone)]
+pub struct PlanPanel {
+    /// View state.
+    pub view: PlanView,
+    /// The plan as last read.
+    pub board: PlanBoard,
+    /// Forecasts supplied by the caller instead of the stored ones (tests, or a caller that computes
+    /// them); `None` reads the stored forecasts.
+    pub forecasts: Option<BTreeMap<i64, Forecast>>,
+    /// The last result or error, in words.
+    pub message: Option<String>,
+}
+
+impl PlanPanel {
+    /// Reads the plan from `store` as of `today`, with the stored forecasts.
+    ///
+    /// # Errors
+    /// A store error while reading.
+    pub fn load(store: &Store, today: NaiveDate) -> spallcast_plan::Result<Self> {
+        Ok(Self {
+            view: PlanView::default(),
+            board: load_board(store, today)?,
+            forecasts: None,
+            message: None,
+        })
+    }
+
+    /// Reads the plan with forecasts supplied by the caller (by bearing life id).
+    ///
+    /// # Errors
+    /// A store error while reading.
+    pub fn load_with(
+        store: &Store,
+        today: NaiveDate,
+        forecasts: BTreeMap<i64, Forecast>,
+    ) -> spallcast_plan::Result<Self> {
+        let board = load_board_with(store, today, &forecasts)?;
+        Ok(Self {
+            view: PlanView::default(),
+            board,
+            forecasts: Some(forecasts),
+            message: None,
+        })
+    }
+
+    /// Reads the board again (after an import or a change made elsewhere).
+    ///
+    /// # Errors
+    /// A store error while reading.
+    pub fn reload(&mut self, store: &Store) -> spallcast_plan::Result<()> {
+        let today = self.board.today;
+        self.board = match &self.forecasts {
+            Some(f) => load_board_with(store, today, f)?,
+            None => load_board(store, today)?,
+        };
+        Ok(())
+    }
+
+    /// Draws the calendar, applies the planner's changes to `store` and reloads the board.
+    pub fn ui(&mut self, ui: &mut egui::Ui, store: &mut Store) {
+        if let Some(msg) = &self.message {
+            ui.label(egui::RichText::new(msg).strong());
+        }
+        let changes = self.view.ui(ui, &self.board);
+        if changes.is_empty() {
+            return;
+        }
+        let mut lines = Vec::new();
+        for change in &changes {
+            match apply_change(store, change) {
+                Ok(done) => {
+                    lines.push(done);
+                    lines.extend(self.slot_warnings_after(change));
+                }
+                Err(err) => lines.push(format!("Not done: {err}")),
+            }
+        }
+        if let Err(err) = self.reload(store) {
+            lines.push(format!("Could not read the plan again: {err}"));
+        }
+        self.message = Some(lines.join("\n"));
+        ui.ctx().request_repaint();
+    }
+
+    /// Warnings, in words, for a bearing just planned into an outage.
+    fn slot_warnings_after(&self, change: &PlanChange) -> Vec<String> {
+        let PlanChange::Assign { life_id, outage_id } = change else {
+            return Vec::new();
+        };
+        let Some(outage) = self.board.outage(*outage_id) else {
+            return Vec::new();
+        };
+        let forecast = self
+            .board
+            .needs
+            .iter()
+            .find(|n| n.life.life_id == *life_id)
+            .cloned()
+            .or_else(|| {
+                let e = self
+                    .board
+                    .entries
+                    .iter()
+                    .find(|e| e.life.life_id == *life_id)?;
+                Some(spallcast_plan::BearingNeed {
+                    life: e.life.clone(),
+                    forecast: e.forecast.clone()?,
+                })
+            });
+        forecast
+            .map(|need| spallcast_plan::slot_warnings(&need, outage, self.board.today))
+            .unwrap_or_default()
+            .iter()
+            .map(|w| format!("Warning: {w}"))
+            .collect()
+    }
+}

@@ -1,0 +1,38 @@
+//! The data-access seam: what the window needs from the store and the analysis crate.
+//!
+//! Worker threads call a [`Backend`]; the panels never do. [`crate::store_backend::StoreBackend`] is the
+//! real one (SQLite store, analysis crate); tests and benches may supply their own.
+
+use std::path::Path;
+
+use crate::model::{
+    Attention, BearingHistory, BearingKey, ImportProgress, ImportSummary, PlantTree, ReadingId,
+    ReadingSpectra, Waveform,
+};
+
+/// A read connection to one plant database. Not `Sync`: each worker thread opens its own.
+pub trait PlantSource: Send {
+    /// The plant hierarchy with each bearing's latest stage.
+    fn plant(&mut self) -> anyhow::Result<PlantTree>;
+    /// What needs attention after the latest route day.
+    fn attention(&mut self) -> anyhow::Result<Attention>;
+    /// One bearing's readings, stage call and forecast.
+    fn bearing(&mut self, key: &BearingKey) -> anyhow::Result<BearingHistory>;
+    /// The samples of one reading.
+    fn waveform(&mut self, reading: ReadingId) -> anyhow::Result<Waveform>;
+}
+
+/// Opens sources, imports route folders and computes spectra. Shared by every worker thread.
+pub trait Backend: Send + Sync {
+    /// Opens a database for reading. The error names the file and what is wrong.
+    fn open(&self, db_path: &Path) -> anyhow::Result<Box<dyn PlantSource>>;
+    /// Imports a route folder into the database, reporting progress as it goes.
+    fn import_route(
+        &self,
+        db_path: &Path,
+        folder: &Path,
+        progress: &mut dyn FnMut(ImportProgress),
+    ) -> anyhow::Result<ImportSummary>;
+    /// The acceleration, velocity and envelope spectra of a waveform.
+    fn spectra(&self, waveform: &Waveform) -> anyhow::Result<ReadingSpectra>;
+}

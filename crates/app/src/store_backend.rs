@@ -1,0 +1,573 @@
+//! The real [`Backend`]: the SQLite store for data, the analysis crate for spectra.
+
+use std::collections::{BTreeMap, HashMap};
+use std::path::Path;
+use std::sync::{Arc, Mutex};
+
+use anyhow::Context as _;
+use chrono::NaiveDate;
+use spallcast_analysis::{FaultFactors, FaultFrequencies, SpectrumEngine};
+use spallcast_store::{IsoSupport, ReadingAnalyzer, Store};
+
+use crate::model::{
+    AreaNode, Attention, BearingHistory, BearingKey, BearingNode, ChangedBearing, DueBearing,
+    ForecastView, ImportProgress, ImportSummary, MachineNode, PlantTree, ReadingId, ReadingSpectra,
+    ReadingSummary, RejectedFile, Spectrum, StageCallView, Waveform,
+};
+use crate::source::{Backend, PlantSource};
+
+/// How route folders are imported: the store's import plus whatever runs after it (stage calls,
+/// forecasts). Receives the database, the folder and a progress callback.
+pub type RouteImporter = dyn Fn(&Path, &Path, &mut dyn FnMut(ImportProgress)) -> anyhow::Result<ImportSummary>
+    + Send
+    + Sync;
+
+/// Store plus analysis crate.
+pub struct StoreBackend {
+    importer: Arc<RouteImporter>,
+    engine: Mutex<SpectrumEngine>,
+}
+
+impl StoreBackend {
+    /// A backend whose imports call `importer`.
+    pub fn new(importer: Arc<RouteImporter>) -> Self {
+        Self {
+            importer,
+            engine: Mutex::new(SpectrumEngine::new()),
+        }
+    }
+
+    /// A backend that imports with the store's own route import and `analyzer`, and nothing after it.
+    pub fn with_analyzer(analyzer: Arc<dyn ReadingAnalyzer + Send + Sync>) -> Self {
+        Self::new(Arc::new(
+            move |db: &Path, folder: &Path, progress: &mut dyn FnMut(ImportProgress)| {
+                store_import(db, folder, analyzer.as_ref(), progress)
+            },
+        ))
+    }
+}
+
+/// Imports `folder` into `db` with the store's route import and converts the summary.
+pub fn store_import(
+    db: &Path,
+    folder: &Path,
+    analyzer: &dyn ReadingAnalyzer,
+    progress: &mut dyn FnMut(ImportProgress),
+) -> anyhow::Result<ImportSummary> {
+    let mut store = Store::open(db)?;
+    let summary = store.import_route(folder, analyzer, &mut |done, total| {
+        progress(ImportProgress { done, total })
+    })?;
+    Ok(summary_view(&summary))
+}
+
+/// The window's view of a store import summary.
+pub fn summary_view(summary: &spallcast_store::ImportSummary) -> ImportSummary {
+    ImportSummary {
+        imported: summary.new_readings,
+        already_present: summary.duplicates,
+        rejected: summary
+            .rejected
+            .iter()
+            .map(|r| RejectedFile {
+                file: r.file.clone(),
+                reason: r.reason.clone(),
+            })
+            .collect(),
+    }
+}
+
+impl Backend for StoreBackend {
+    fn open(&self, db_path: &Path) -> anyhow::Result<Box<dyn PlantSource>> {
+        let store = Store::open_existing(db_path)?;
+        Ok(Box::new(StoreSource {
+            store,
+            positions: HashMap::new(),
+        }))
+    }
+
+    fn import_route(
+        &self,
+        db_path: &Path,
+        folder: &Path,
+        progress: &mut dyn FnMut(ImportProgress),
+    ) -> anyhow::Result<ImportSummary> {
+        (self.importer)(db_path, folder, progress)
+    }
+
+    fn spectra(&self, waveform: &Waveform) -> anyhow::Result<ReadingSpectra> {
+        let mut engine = self
+            .engine
+            .lock()
+            .map_err(|_| anyhow::anyhow!("the spectrum engine was poisoned by a panic"))?;
+        compute_spectra(&mut engine, waveform)
+    }
+}
+
+/// Acceleration, velocity and envelope spectra of one waveform, with the analysis crate's plot settings.
+pub fn compute_spectra(
+    engine: &mut SpectrumEngine,
+    waveform: &Waveform,
+) -> anyhow::Result<ReadingSpectra> {
+    let samples: Vec<f64> = waveform.samples_g.iter().map(|&v| f64::from(v)).collect();
+    let fs = waveform.sample_rate_hz;
+    let shaft_hz = waveform.shaft_hz;
+    let id = waveform.reading_id;
+    let accel = spallcast_analysis::acceleration_spectrum(
+        engine,
+        &samples,
+        fs,
+        shaft_hz,
+        Default::default(),
+    )
+    .with_context(|| format!("acceleration spectrum of reading {id}"))?;
+    let velocity =
+        spallcast_analysis::velocity_spectrum(engine, &samples, fs, shaft_hz, Default::default())
+            .with_context(|| format!("velocity spectrum of reading {id}"))?;
+    // Without fault factors the kurtogram has no defect rate to size its band by: use a wide fixed band
+    // in the upper part of the recording instead.
+    let (freqs, band) = match waveform.factors {
+        Some(f) => (f.at_shaft_hz(shaft_hz), None),
+        None => (
+            FaultFrequencies {
+                shaft_hz,
+                ftf: shaft_hz,
+                bsf: shaft_hz,
+                bpfo: shaft_hz,
+                bpfi: shaft_hz,
+            },
+            Some((0.1 * fs, 0.4 * fs)),
+        ),
+    };
+    let (envelope, band_used) =
+        spallcast_analysis::envelope_spectrum(engine, &samples, fs, &freqs, band, false)
+            .with_context(|| format!("envelope spectrum of reading {id}"))?;
+    let convert = |s: &spallcast_analysis::Spectrum| Spectrum {
+        df_hz: s.freq_step_hz,
+        amplitude: s.values.iter().map(|&v| v as f32).collect(),
+    };
+    Ok(ReadingSpectra {
+        reading_id: id,
+        shaft_hz,
+        acceleration: convert(&accel),
+        velocity: convert(&velocity),
+        envelope: convert(&envelope),
+        envelope_band_hz: Some((band_used[0], band_used[1])),
+    })
+}
+
+/// What the source remembers about a bearing position between queries.
+#[derive(Debug, Clone)]
+struct PositionInfo {
+    id: i64,
+    factors: Option<FaultFactors>,
+    iso_group: u8,
+    iso_flexible: bool,
+    lubrication: String,
+}
+
+/// A read connection to one database.
+struct StoreSource {
+    store: Store,
+    positions: HashMap<BearingKey, PositionInfo>,
+}
+
+fn factors_of(f: Option<spallcast_store::FaultFactors>) -> Option<FaultFactors> {
+    f.filter(spallcast_store::FaultFactors::is_valid)
+        .map(|f| FaultFactors {
+            ftf: f.ftf,
+            bsf: f.bsf,
+            bpfo: f.bpfo,
+            bpfi: f.bpfi,
+        })
+}
+
+impl StoreSource {
+    fn position(&mut self, key: &BearingKey) -> anyhow::Result<PositionInfo> {
+        if !self.positions.contains_key(key) {
+            self.plant()?;
+        }
+        self.positions
+            .get(key)
+            .cloned()
+            .with_context(|| format!("no bearing {} in this database", key.display()))
+    }
+
+    fn stage_of(&self, reading: ReadingId) -> anyhow::Result<Option<spallcast_store::StageCall>> {
+        Ok(self.store.stage_call(reading)?)
+    }
+
+    /// The diagnosis string of a reading's stored analysis, if any.
+    fn diagnosis_of(&self, reading: ReadingId) -> anyhow::Result<Option<String>> {
+        Ok(self.store.analysis(reading)?.and_then(|a| {
+            a.document
+                .get("diagnosis")
+                .and_then(serde_json::Value::as_str)
+                .map(str::to_owned)
+        }))
+    }
+
+    /// Highest stage and the diagnoses of a position's readings on one day.
+    fn day_state(
+        &self,
+        readings: &[&spallcast_store::ReadingMeta],
+    ) -> anyhow::Result<(Option<u8>, Vec<String>)> {
+        let mut stage = None;
+        let mut diagnoses = Vec::new();
+        for r in readings {
+            if let Some(call) = self.stage_of(r.id)? {
+                stage = stage.max(Some(call.stage));
+            }
+            if let Some(d) = self.diagnosis_of(r.id)? {
+                diagnoses.push(d);
+            }
+        }
+        diagnoses.sort();
+        diagnoses.dedup();
+        Ok((stage, diagnoses))
+    }
+}
+
+impl PlantSource for StoreSource {
+    fn plant(&mut self) -> anyhow::Result<PlantTree> {
+        let tree = self.store.plant_tree()?;
+        let states = self.store.latest_states()?;
+        let stage_by_position: HashMap<i64, u8> = states
+            .iter()
+            .filter_map(|s| Some((s.position_id, s.latest_stage.as_ref()?.stage)))
+            .collect();
+        self.positions.clear();
+        let mut areas = Vec::with_capacity(tree.areas.len());
+        for area in &tree.areas {
+            let mut machines = Vec::with_capacity(area.machines.len());
+            for machine in &area.machines {
+                let mut bearings = Vec::with_capacity(machine.bearings.len());
+                for b in &machine.bearings {
+                    let key = BearingKey {
+                        machine_id: machine.tag.clone(),
+                        position: b.position.clone(),
+                    };
+                    self.positions.insert(
+                        key.clone(),
+                        PositionInfo {
+                            id: b.position_id,
+                            factors: factors_of(b.factors),
+                            iso_group: machine.iso_group,
+                            iso_flexible: machine.iso_support == IsoSupport::Flexible,
+                            lubrication: b.lubrication.as_str().to_owned(),
+                        },
+                    );
+                    bearings.push(BearingNode {
+                        key,
+                        description: b.description.clone(),
+                        stage: stage_by_position.get(&b.position_id).copied(),
+                    });
+                }
+                machines.push(MachineNode {
+                    id: machine.tag.clone(),
+                    name: machine.name.clone(),
+                    bearings,
+                });
+            }
+            areas.push(AreaNode {
+                name: area.name.clone(),
+                machines,
+            });
+        }
+        Ok(PlantTree {
+            site: tree.site_name,
+            areas,
+        })
+    }
+
+    fn attention(&mut self) -> anyhow::Result<Attention> {
+        let days = self.store.route_days()?;
+        let latest_day = days.first().map(|d| d.day);
+        let previous_day = days.get(1).map(|d| d.day);
+        let mut changed = Vec::new();
+        if let (Some(latest), Some(previous)) = (latest_day, previous_day) {
+            let now = self.store.readings_of_day(latest)?;
+            let before = self.store.readings_of_day(previous)?;
+            let mut by_key: BTreeMap<
+                BearingKey,
+                (
+                    Vec<&spallcast_store::ReadingMeta>,
+                    Vec<&spallcast_store::ReadingMeta>,
+                ),
+            > = BTreeMap::new();
+            for r in &now {
+                let key = BearingKey {
+                    machine_id: r.machine.clone(),
+                    position: r.position.clone(),
+                };
+                by_key.entry(key).or_default().0.push(r);
+            }
+            for r in &before {
+                let key = BearingKey {
+                    machine_id: r.machine.clone(),
+                    position: r.position.clone(),
+                };
+                if let Some(entry) = by_key.get_mut(&key) {
+                    entry.1.push(r);
+                }
+            }
+            for (key, (now_readings, before_readings)) in by_key {
+                if before_readings.is_empty() {
+                    continue;
+                }
+                let (stage_now, diag_now) = self.day_state(&now_readings)?;
+                let (stage_before, diag_before) = self.day_state(&before_readings)?;
+                let what = if stage_now != stage_before {
+                    format!(
+                        "stage {} → {}",
+                        crate::palette::stage_text(stage_before),
+                        crate::palette::stage_text(stage_now)
+                    )
+                } else if diag_now != diag_before {
+                    format!(
+                        "findings {} → {}",
+                        list_or_none(&diag_before),
+                        list_or_none(&diag_now)
+                    )
+                } else {
+                    continue;
+                };
+                changed.push(ChangedBearing {
+                    key,
+                    stage_before,
+                    stage_now,
+                    what,
+                });
+            }
+            changed.sort_by(|a, b| {
+                b.stage_now
+                    .cmp(&a.stage_now)
+                    .then_with(|| a.key.cmp(&b.key))
+            });
+        }
+        let mut due = Vec::new();
+        let mut forecasts_stored = false;
+        for state in self.store.latest_states()? {
+            let Some(call) = &state.latest_stage else {
+                continue;
+            };
+            if let Some(forecast) = forecast_from(&call.evidence) {
+                forecasts_stored = true;
+                due.push(DueBearing {
+                    key: BearingKey {
+                        machine_id: state.machine.clone(),
+                        position: state.position.clone(),
+                    },
+                    stage: Some(call.stage),
+                    replace_by: forecast.replace_by,
+                });
+            }
+        }
+        due.sort_by(|a, b| {
+            a.replace_by
+                .cmp(&b.replace_by)
+                .then_with(|| a.key.cmp(&b.key))
+        });
+        let rejected = self
+            .store
+            .rejected_files(100)?
+            .into_iter()
+            .map(|e| RejectedFile {
+                file: e.file,
+                reason: e.reason.unwrap_or_default(),
+            })
+            .collect();
+        Ok(Attention {
+            latest_day,
+            previous_day,
+            changed,
+            due,
+            forecasts_stored,
+            rejected,
+        })
+    }
+
+    fn bearing(&mut self, key: &BearingKey) -> anyhow::Result<BearingHistory> {
+        let info = self.position(key)?;
+        let lives = self.store.lives(info.id)?;
+        let metas = self.store.readings_of_position(info.id)?;
+        let mut readings = Vec::with_capacity(metas.len());
+        let mut latest_call = None;
+        for meta in metas {
+            let scalars = self
+                .store
+                .analysis(meta.id)?
+                .map(|a| a.scalars)
+                .unwrap_or_default();
+            let call = self.stage_of(meta.id)?;
+            let stage = call.as_ref().map(|c| c.stage);
+            if call.is_some() {
+                latest_call = call;
+            }
+            readings.push(ReadingSummary {
+                id: meta.id,
+                point: meta.point,
+                taken_at: meta.taken_at,
+                rpm: meta.shaft_hz * 60.0,
+                scalars,
+                stage,
+            });
+        }
+        readings.sort_by_key(|r| r.taken_at);
+        let stage_call = latest_call.as_ref().map(|c| StageCallView {
+            stage: c.stage,
+            evidence: evidence_sentences(&c.evidence),
+        });
+        let forecast = latest_call
+            .as_ref()
+            .and_then(|c| forecast_from(&c.evidence));
+        Ok(BearingHistory {
+            key: key.clone(),
+            factors: info.factors,
+            iso_group: info.iso_group,
+            iso_flexible: info.iso_flexible,
+            lubrication: info.lubrication,
+            readings,
+            lives_started: lives.iter().map(|l| l.installed).collect(),
+            stage_call,
+            forecast,
+        })
+    }
+
+    fn waveform(&mut self, reading: ReadingId) -> anyhow::Result<Waveform> {
+        let mut found = self.store.waveforms(&[reading])?;
+        let w = found
+            .pop()
+            .with_context(|| format!("reading {reading} has no stored waveform"))?;
+        let key = BearingKey {
+            machine_id: w.meta.machine.clone(),
+            position: w.meta.position.clone(),
+        };
+        let factors = self.position(&key).ok().and_then(|p| p.factors);
+        if w.samples_g.is_empty() {
+            anyhow::bail!(
+                "reading {reading} ({}) has no stored samples",
+                w.meta.source_file
+            );
+        }
+        Ok(Waveform {
+            reading_id: reading,
+            samples_g: w.samples_g,
+            sample_rate_hz: w.meta.sample_rate_hz,
+            shaft_hz: w.meta.shaft_hz,
+            factors,
+        })
+    }
+}
+
+fn list_or_none(items: &[String]) -> String {
+    if items.is_empty() {
+        "none".to_owned()
+    } else {
+        items.join(", ")
+    }
+}
+
+/// Evidence sentences from a stored stage call: a JSON list of strings, or an object with an
+/// `evidence` list (and optionally `limits`, appended), possibly under `call` as the pipeline stores it.
+pub fn evidence_sentences(evidence: &serde_json::Value) -> Vec<String> {
+    let strings = |v: Option<&serde_json::Value>| -> Vec<String> {
+        v.and_then(serde_json::Value::as_array)
+            .map(|a| {
+                a.iter()
+                    .filter_map(|s| s.as_str().map(str::to_owned))
+                    .collect()
+            })
+            .unwrap_or_default()
+    };
+    match evidence {
+        serde_json::Value::Array(_) => strings(Some(evidence)),
+        serde_json::Value::String(s) => vec![s.clone()],
+        serde_json::Value::Object(map) => {
+            let call = map
+                .get("call")
+                .filter(|c| c.is_object())
+                .unwrap_or(evidence);
+            let mut out = strings(call.get("evidence"));
+            out.extend(strings(call.get("limits")));
+            out
+        }
+        _ => Vec::new(),
+    }
+}
+
+/// A forecast stored with a stage call under `forecast`: `replace_by` either as the analysis crate's
+/// projection (`t_s`, `lo_s`, `hi_s` in Unix seconds; `hi_s` null when open) or as a `YYYY-MM-DD`
+/// date with optional `earliest` / `latest` dates. `None` when absent or null.
+pub fn forecast_from(evidence: &serde_json::Value) -> Option<ForecastView> {
+    let forecast = evidence.get("forecast").filter(|f| f.is_object())?;
+    let replace_by = forecast.get("replace_by")?;
+    let from_s = |v: Option<&serde_json::Value>| {
+        let s = v?.as_f64()?;
+        chrono::DateTime::from_timestamp(s.floor() as i64, 0).map(|t| t.date_naive())
+    };
+    if replace_by.is_object() {
+        let central = from_s(replace_by.get("t_s"))?;
+        return Some(ForecastView {
+            replace_by: central,
+            earliest: from_s(replace_by.get("lo_s")).unwrap_or(central),
+            latest: from_s(replace_by.get("hi_s")).unwrap_or(central),
+        });
+    }
+    let date = |v: Option<&serde_json::Value>| {
+        let text = v?.as_str()?;
+        NaiveDate::parse_from_str(text.get(..10)?, "%Y-%m-%d").ok()
+    };
+    let central = date(Some(replace_by))?;
+    Some(ForecastView {
+        replace_by: central,
+        earliest: date(forecast.get("earliest")).unwrap_or(central),
+        latest: date(forecast.get("latest")).unwrap_or(central),
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn evidence_as_the_pipeline_stores_it() {
+        let v = serde_json::json!({
+            "call": { "stage": 2, "evidence": ["BPFO in the envelope"], "limits": ["one point only"] },
+            "forecast": { "replace_by": { "t_s": 1_780_000_000.0, "lo_s": 1_775_000_000.0, "hi_s": null } },
+            "point": "X-1"
+        });
+        assert_eq!(
+            evidence_sentences(&v),
+            vec![
+                "BPFO in the envelope".to_owned(),
+                "one point only".to_owned()
+            ]
+        );
+        let f = forecast_from(&v).unwrap();
+        // 1_780_000_000 s after 1970-01-01T00:00Z is 2026-05-28T20:26:40Z (Unix time, by definition).
+        assert_eq!(f.replace_by.to_string(), "2026-05-28");
+        assert_eq!(f.earliest.to_string(), "2026-03-31");
+        assert_eq!(f.latest, f.replace_by, "open interval: no upper date");
+        assert!(forecast_from(&serde_json::json!({ "forecast": null })).is_none());
+        assert!(
+            forecast_from(&serde_json::json!({ "forecast": { "replace_by": null } })).is_none()
+        );
+    }
+
+    #[test]
+    fn evidence_in_simpler_shapes() {
+        assert_eq!(
+            evidence_sentences(&serde_json::json!(["a", "b"])),
+            vec!["a", "b"]
+        );
+        assert_eq!(
+            evidence_sentences(&serde_json::json!({ "evidence": ["c"] })),
+            vec!["c"]
+        );
+        assert!(evidence_sentences(&serde_json::json!(3)).is_empty());
+        let f = forecast_from(&serde_json::json!({ "forecast": { "replace_by": "2027-03-08" } }))
+            .unwrap();
+        assert_eq!(f.replace_by.to_string(), "2027-03-08");
+    }
+}

@@ -1,0 +1,295 @@
+//! egui_kittest tests that drive the real app state on a small database built through the store API.
+
+mod common;
+
+use common::{
+    BEARING_LABEL, BPFO_ORDERS, DAYS, EVIDENCE, RPM, STAGES, build_fixture, harness, settle,
+};
+use egui_kittest::kittest::Queryable;
+use spallcast_app::model::BearingKey;
+use spallcast_app::{CAUTION_LINE, NOTICE_BUTTON, NOTICE_TITLE, View};
+
+fn de_key() -> BearingKey {
+    BearingKey {
+        machine_id: "TP-P1".to_owned(),
+        position: "DE".to_owned(),
+    }
+}
+
+#[test]
+fn cautions_are_shown_until_read_and_stay_in_the_status_bar() {
+    let fx = build_fixture();
+    let mut h = harness(&fx.db, false);
+    settle(&mut h);
+    assert!(
+        h.query_by_label(NOTICE_TITLE).is_some(),
+        "first-run notice missing"
+    );
+    assert!(!h.state().state.cautions_acknowledged);
+    h.get_by_label(NOTICE_BUTTON).click();
+    h.run_steps(3);
+    assert!(h.state().state.cautions_acknowledged);
+    assert!(
+        h.query_by_label(NOTICE_TITLE).is_none(),
+        "notice still open after reading it"
+    );
+    // The permanent line stays.
+    assert!(h.query_by_label(CAUTION_LINE).is_some());
+}
+
+#[test]
+fn plant_tree_shows_bearings_with_their_latest_stage() {
+    let fx = build_fixture();
+    let mut h = harness(&fx.db, true);
+    settle(&mut h);
+    let app = h.state();
+    let plant = app.plant().expect("plant loaded");
+    assert_eq!(plant.site, "Test Reach Pumping Station");
+    let de = plant.bearing(&de_key()).expect("DE in tree");
+    assert_eq!(
+        de.stage,
+        Some(STAGES[3]),
+        "badge shows the latest stage call"
+    );
+    let nde = plant
+        .bearing(&BearingKey {
+            machine_id: "TP-P1".to_owned(),
+            position: "NDE".to_owned(),
+        })
+        .unwrap();
+    assert_eq!(nde.stage, None, "no call stored: badge shows the dash");
+    assert!(h.query_by_label(BEARING_LABEL).is_some());
+    assert!(h.query_by_label("NDE  Pump non-drive end").is_some());
+    // Stage went 1 → 2 between the last two route days: it is listed as changed.
+    let att = h.state().attention().unwrap();
+    assert_eq!(
+        att.latest_day.map(|d| d.to_string()).as_deref(),
+        Some(DAYS[3])
+    );
+    assert_eq!(
+        att.previous_day.map(|d| d.to_string()).as_deref(),
+        Some(DAYS[2])
+    );
+    let changed: Vec<_> = att
+        .changed
+        .iter()
+        .map(|c| (c.key.clone(), c.stage_before, c.stage_now))
+        .collect();
+    assert_eq!(changed, vec![(de_key(), Some(STAGES[2]), Some(STAGES[3]))]);
+}
+
+#[test]
+fn select_bearing_add_month_and_toggle_fault_markers() {
+    let fx = build_fixture();
+    let mut h = harness(&fx.db, true);
+    settle(&mut h);
+    h.get_by_label(BEARING_LABEL).click();
+    h.step();
+    settle(&mut h);
+    assert_eq!(h.state().selected_bearing(), Some(&de_key()));
+    assert_eq!(h.state().state.view, View::Spectra);
+    let ids = &fx.de_readings;
+    // Default months: the baseline of the current life (the first reading after the 2026-02-01
+    // replacement), the previous reading and the latest.
+    let panel = h.state().spectra_panel();
+    assert_eq!(panel.selected, vec![ids[1], ids[2], ids[3]]);
+    assert_eq!(panel.summary.drawn, vec![ids[1], ids[2], ids[3]]);
+    assert!(panel.summary.plotted_points > 0);
+    // At most two points per screen column per curve (the plot is narrower than the 1400 px window).
+    assert!(
+        panel.summary.plotted_points <= 3 * (2 * 1400 + 4),
+        "{}",
+        panel.summary.plotted_points
+    );
+    // BPFO markers are on by default, at CWRU's published 3.5848 orders × 1772 r/min = 105.87 Hz
+    // (REFERENCES.md §1.2(a), 1 hp row).
+    let bpfo = panel
+        .summary
+        .markers
+        .iter()
+        .find(|(l, _)| l == "BPFO")
+        .expect("BPFO marker drawn");
+    assert!((bpfo.1 - 105.87).abs() < 0.05, "BPFO at {} Hz", bpfo.1);
+    assert!((bpfo.1 - BPFO_ORDERS * RPM / 60.0).abs() < 0.05);
+    assert!(!panel.summary.markers.iter().any(|(l, _)| l.contains("BSF")));
+
+    // Add the month before the replacement.
+    h.get_by_label(DAYS[0]).click();
+    h.step();
+    settle(&mut h);
+    let panel = h.state().spectra_panel();
+    assert_eq!(panel.selected, vec![ids[0], ids[1], ids[2], ids[3]]);
+    assert_eq!(panel.summary.drawn, vec![ids[0], ids[1], ids[2], ids[3]]);
+    assert!(
+        h.state().cache().spectra_of(ids[0]).is_some(),
+        "spectra cached per reading"
+    );
+
+    // Switch the BPFO family off and the rolling-element family on.
+    h.get_by_label("BPFO").click();
+    h.get_by_label("BSF (2×)").click();
+    h.run_steps(2);
+    let summary = &h.state().spectra_panel().summary;
+    assert!(
+        !summary.markers.iter().any(|(l, _)| l.contains("BPFO")),
+        "{:?}",
+        summary.markers
+    );
+    // Rolling-element markers at 2×BSF = 4.7135 orders (CWRU published, REFERENCES.md §1.2(a)).
+    let bsf = summary
+        .markers
+        .iter()
+        .find(|(l, _)| l == "2×BSF")
+        .expect("2×BSF marker drawn");
+    assert!(
+        (bsf.1 - 4.7135 * RPM / 60.0).abs() < 0.1,
+        "2×BSF at {} Hz",
+        bsf.1
+    );
+    assert!(!h.state().state.spectra.markers.outer.harmonics);
+    assert!(h.state().state.spectra.markers.rolling.harmonics);
+
+    // Sidebands of the inner race: ±1x around each BPFI harmonic.
+    h.get_by_label("BPFI sidebands").click();
+    h.run_steps(2);
+    let summary = &h.state().spectra_panel().summary;
+    let bpfi = summary.markers.iter().find(|(l, _)| l == "BPFI").unwrap().1;
+    let upper = summary
+        .markers
+        .iter()
+        .find(|(l, _)| l == "BPFI+1x")
+        .expect("BPFI+1x sideband")
+        .1;
+    assert!((upper - bpfi - RPM / 60.0).abs() < 1e-6);
+
+    // Remove a month again.
+    h.get_by_label(DAYS[2]).click();
+    h.run_steps(2);
+    assert_eq!(
+        h.state().spectra_panel().summary.drawn,
+        vec![ids[0], ids[1], ids[3]]
+    );
+}
+
+#[test]
+fn evidence_trend_and_waveform_views_show_the_bearing() {
+    let fx = build_fixture();
+    let mut h = harness(&fx.db, true);
+    settle(&mut h);
+    h.get_by_label(BEARING_LABEL).click();
+    h.step();
+    settle(&mut h);
+    // The latest call's evidence sentence is beside the plots.
+    let history = h.state().history().unwrap();
+    assert_eq!(
+        history.stage_call.as_ref().map(|c| c.stage),
+        Some(STAGES[3])
+    );
+    assert!(h.query_by_label(&format!("• {EVIDENCE}")).is_some());
+
+    h.get_by_label("Life trend").click();
+    h.run_steps(3);
+    assert_eq!(h.state().state.view, View::Trend);
+    let t = &h.state().trend_panel().summary;
+    assert!(
+        t.indicators.iter().any(|k| k == "stage.accel_rms_g"),
+        "{:?}",
+        t.indicators
+    );
+    assert_eq!(t.staged_readings, 4, "a stage numeral at every reading");
+    assert_eq!(t.replacements, 1, "the 2026-02-01 replacement");
+    assert!(t.zone_lines, "ISO 20816-3 zone lines on overall velocity");
+    assert!(!t.forecast, "no forecast stored in this database");
+
+    h.get_by_label("Waveform").click();
+    h.step();
+    settle(&mut h);
+    let w = h.state().waveform_panel();
+    assert_eq!(
+        w.reading,
+        Some(fx.de_readings[3]),
+        "newest reading by default"
+    );
+    assert!(
+        w.plotted_points > 100 && w.plotted_points < common::SAMPLES,
+        "{}",
+        w.plotted_points
+    );
+}
+
+#[test]
+fn opening_a_missing_database_reports_the_file() {
+    let dir = tempfile::tempdir().unwrap();
+    let missing = dir.path().join("nothing-here.sqlite");
+    let mut h = harness(&missing, true);
+    settle(&mut h);
+    let status = h.state().status().expect("a status message");
+    assert!(status.is_error);
+    assert!(
+        status.text.contains("nothing-here.sqlite"),
+        "{}",
+        status.text
+    );
+    assert!(h.state().plant().is_none());
+}
+
+#[test]
+fn import_route_folder_in_background_then_show_summary() {
+    let fx = build_fixture();
+    let mut h = harness(&fx.db, true);
+    settle(&mut h);
+    let folder = fx.dir.path().join("route-2026-05");
+    std::fs::create_dir_all(&folder).unwrap();
+    let samples = common::synth(0.3, 77);
+    let text: String = samples.iter().map(|v| format!("{v}\n")).collect();
+    std::fs::write(folder.join("de.csv"), text).unwrap();
+    std::fs::write(
+        folder.join("route.csv"),
+        format!(
+            "file,point,taken_at,rpm,sample_rate_hz\n\
+             de.csv,TP-P1-DE-H,2026-05-14T09:30:00+00:00,{RPM},{fs}\n\
+             de.csv,NO-SUCH-POINT,2026-05-14T09:31:00+00:00,{RPM},{fs}\n\
+             missing.csv,TP-P1-NDE-H,2026-05-14T09:32:00+00:00,{RPM},{fs}\n",
+            fs = common::FS_HZ
+        ),
+    )
+    .unwrap();
+
+    h.state_mut()
+        .apply(spallcast_app::actions::Action::ImportFolder(folder.clone()));
+    assert!(h.state().importing(), "the import runs on its own thread");
+    settle(&mut h);
+    let summary = h
+        .state()
+        .import_summary()
+        .unwrap()
+        .as_ref()
+        .unwrap()
+        .clone();
+    assert_eq!(summary.imported, 1);
+    assert_eq!(summary.already_present, 0);
+    let mut refused: Vec<&str> = summary.rejected.iter().map(|r| r.file.as_str()).collect();
+    refused.sort_unstable();
+    assert_eq!(refused, vec!["de.csv", "missing.csv"]);
+    assert!(
+        h.query_by_label("1 readings imported, 0 already present.")
+            .is_some()
+    );
+    // The lists were reloaded: the new route day is the latest, and the refused files are listed.
+    let att = h.state().attention().unwrap();
+    assert_eq!(
+        att.latest_day.map(|d| d.to_string()).as_deref(),
+        Some("2026-05-14")
+    );
+    assert!(att.rejected.iter().any(|r| r.file == "missing.csv"));
+    h.get_by_label("Close").click();
+    h.run_steps(2);
+    assert!(h.state().import_summary().is_none());
+
+    // Importing the same folder again adds nothing.
+    h.state_mut()
+        .apply(spallcast_app::actions::Action::ImportFolder(folder));
+    settle(&mut h);
+    let again = h.state().import_summary().unwrap().as_ref().unwrap();
+    assert_eq!((again.imported, again.already_present), (0, 1));
+}
