@@ -31,4 +31,6 @@ pub enum Action {
     AcknowledgeCautions,
     /// Close the import summary.
     DismissImportSummary,
+    /// Apply the planner's changes to the outage plan.
+    ChangePlan(Vec<spallcast_plan::source::PlanChange>),
 }

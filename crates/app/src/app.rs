@@ -11,11 +11,11 @@ use crate::cache::{ReadingCache, Slot};
 use crate::model::{Attention, BearingHistory, BearingKey, ImportSummary, PlantTree};
 use crate::panels::bearing_ui::EvidencePanel;
 use crate::panels::changes_ui::ChangesPanel;
-use crate::panels::outage_plan_ui::OutagePlanPanel;
 use crate::panels::spectra_ui::SpectraPanel;
 use crate::panels::tree_ui::PlantTreePanel;
 use crate::panels::trend_ui::TrendPanel;
 use crate::panels::waveform_ui::WaveformPanel;
+use crate::plan_view::PlanPanel;
 use crate::screenshot::ScreenshotPlan;
 use crate::settings::{PersistedState, View};
 use crate::source::Backend;
@@ -26,6 +26,10 @@ const STATE_KEY: &str = "spallcast-state";
 
 /// Longest time spent per frame taking replies off the worker channels.
 const DRAIN_BUDGET: Duration = Duration::from_millis(8);
+
+/// How often the window asks whether another process (a command-line import, a second window) changed
+/// the database.
+const CHANGE_POLL: Duration = Duration::from_secs(3);
 
 /// How the window starts.
 #[derive(Debug, Clone, Default)]
@@ -38,6 +42,8 @@ pub struct StartOptions {
     pub screenshot: Option<PathBuf>,
     /// Skip the first-run cautions notice (screenshots, tests that do not test it).
     pub cautions_acknowledged: bool,
+    /// The day the outage plan is drawn from (default: today, local time).
+    pub today: Option<chrono::NaiveDate>,
 }
 
 /// A line for the status bar.
@@ -73,7 +79,11 @@ pub struct SpallcastApp {
     pub(crate) trend: TrendPanel,
     pub(crate) waveform: WaveformPanel,
     pub(crate) evidence: EvidencePanel,
-    pub(crate) plan: OutagePlanPanel,
+    pub(crate) plan: Option<PlanPanel>,
+    pub(crate) plan_loading: bool,
+    pub(crate) today: chrono::NaiveDate,
+    pub(crate) last_change_check: std::time::Instant,
+    pub(crate) change_check_pending: bool,
     pub(crate) screenshot: Option<ScreenshotPlan>,
     persist: bool,
 }
@@ -121,7 +131,13 @@ impl SpallcastApp {
             trend: TrendPanel::default(),
             waveform: WaveformPanel::default(),
             evidence: EvidencePanel,
-            plan: OutagePlanPanel,
+            plan: None,
+            plan_loading: false,
+            today: options
+                .today
+                .unwrap_or_else(|| chrono::Local::now().date_naive()),
+            last_change_check: std::time::Instant::now(),
+            change_check_pending: false,
             screenshot: options.screenshot.map(ScreenshotPlan::new),
             persist,
         };
@@ -191,6 +207,16 @@ impl SpallcastApp {
         self.import_summary.as_ref()
     }
 
+    /// The outage-plan calendar, once loaded.
+    pub fn plan_panel(&self) -> Option<&PlanPanel> {
+        self.plan.as_ref()
+    }
+
+    /// The outage-plan calendar, for driving it from tests.
+    pub fn plan_panel_mut(&mut self) -> Option<&mut PlanPanel> {
+        self.plan.as_mut()
+    }
+
     /// Whether an import is running.
     pub fn importing(&self) -> bool {
         self.import.is_some()
@@ -199,6 +225,7 @@ impl SpallcastApp {
     /// Whether any background work is in flight (loading, computing, importing).
     pub fn is_busy(&self) -> bool {
         self.plant_loading
+            || self.plan_loading
             || self.history_loading
             || self.import.is_some()
             || self.cache.any_pending()
@@ -248,6 +275,49 @@ impl SpallcastApp {
             }
             Action::AcknowledgeCautions => self.state.cautions_acknowledged = true,
             Action::DismissImportSummary => self.import_summary = None,
+            Action::ChangePlan(changes) => {
+                if let Some(worker) = &self.worker
+                    && worker.send(Request::ChangePlan(self.today, changes))
+                {
+                    self.plan_loading = true;
+                }
+            }
+        }
+    }
+
+    /// Reads the outage plan when its view is shown and it is not loaded yet.
+    pub(crate) fn ensure_plan(&mut self) {
+        if self.state.view != View::OutagePlan || self.plan.is_some() || self.plan_loading {
+            return;
+        }
+        self.request_plan();
+    }
+
+    fn request_plan(&mut self) {
+        if let Some(worker) = &self.worker {
+            self.plan_loading = worker.send(Request::Plan(self.today));
+        }
+    }
+
+    /// Every few seconds, asks the data thread whether another process changed the database; when it
+    /// did, the plant, the shown bearing and the plan are read again.
+    pub(crate) fn poll_for_changes(&mut self) {
+        if self.change_check_pending || self.last_change_check.elapsed() < CHANGE_POLL {
+            return;
+        }
+        if let Some(worker) = &self.worker {
+            self.change_check_pending = worker.send(Request::CheckForChanges);
+            self.last_change_check = std::time::Instant::now();
+        }
+    }
+
+    /// Reads the plant (and with it the shown bearing) and the plan again.
+    fn reload_all(&mut self) {
+        if let Some(worker) = &self.worker {
+            self.plant_loading = worker.send(Request::Plant);
+        }
+        if self.plan.is_some() {
+            self.request_plan();
         }
     }
 
@@ -259,6 +329,9 @@ impl SpallcastApp {
         self.selected = None;
         self.history = None;
         self.history_loading = false;
+        self.plan = None;
+        self.plan_loading = false;
+        self.change_check_pending = false;
         self.cache.clear();
         match DataWorker::start(self.backend.clone(), path, self.ctx.clone()) {
             Ok(worker) => {
@@ -411,9 +484,40 @@ impl SpallcastApp {
                     Err(e) => self.set_status(format!("import failed: {e}"), true),
                 }
                 self.import_summary = Some(result);
-                // New readings change stages, lists and histories: reload them.
-                if let Some(worker) = &self.worker {
-                    self.plant_loading = worker.send(Request::Plant);
+                // New readings change stages, lists, histories and forecasts: reload them.
+                self.reload_all();
+            }
+            Reply::Plan(result) => {
+                self.plan_loading = false;
+                match result {
+                    Ok(board) => match &mut self.plan {
+                        Some(panel) => panel.board = board,
+                        None => {
+                            self.plan = Some(PlanPanel {
+                                view: crate::plan_view::PlanView::default(),
+                                board,
+                                forecasts: None,
+                                message: None,
+                            });
+                        }
+                    },
+                    Err(e) => self.set_status(format!("could not read the outage plan: {e}"), true),
+                }
+            }
+            Reply::PlanChanged(message, board) => {
+                self.plan_loading = false;
+                if let Some(panel) = &mut self.plan {
+                    panel.received(message, board);
+                }
+            }
+            Reply::ChangedElsewhere(changed) => {
+                self.change_check_pending = false;
+                if changed && !self.plant_loading {
+                    self.set_status(
+                        "the database was changed by another program; reading it again".to_owned(),
+                        false,
+                    );
+                    self.reload_all();
                 }
             }
         }
@@ -448,9 +552,13 @@ impl SpallcastApp {
 }
 
 impl eframe::App for SpallcastApp {
-    fn logic(&mut self, _ctx: &egui::Context, _frame: &mut eframe::Frame) {
+    fn logic(&mut self, ctx: &egui::Context, _frame: &mut eframe::Frame) {
         self.receive();
         self.auto_select();
+        self.ensure_plan();
+        self.poll_for_changes();
+        // Wake up for the next check even when nothing else happens.
+        ctx.request_repaint_after(CHANGE_POLL);
     }
 
     fn ui(&mut self, ui: &mut egui::Ui, _frame: &mut eframe::Frame) {

@@ -145,7 +145,20 @@ impl SpallcastApp {
                 self.changes
                     .ui(ui, self.attention.as_ref(), self.plant.as_ref(), actions)
             }
-            View::OutagePlan => self.plan.ui(ui),
+            View::OutagePlan => match &mut self.plan {
+                Some(panel) => {
+                    let changes = panel.draw(ui);
+                    if !changes.is_empty() {
+                        actions.push(Action::ChangePlan(changes));
+                    }
+                }
+                None => {
+                    ui.horizontal(|ui| {
+                        ui.spinner();
+                        ui.label("reading the outage plan…");
+                    });
+                }
+            },
             View::Spectra | View::Trend | View::Waveform => {
                 let Some(history) = &self.history else {
                     if self.history_loading {
@@ -212,7 +225,7 @@ impl SpallcastApp {
 }
 
 fn cautions_notice_ui(ctx: &egui::Context, actions: &mut Vec<Action>) {
-    egui::Modal::new(egui::Id::new("spallcast-cautions")).show(ctx, |ui| {
+    egui::Modal::new(egui::Id::unique("spallcast-cautions")).show(ctx, |ui| {
         ui.set_max_width(520.0);
         ui.heading(NOTICE_TITLE);
         ui.add_space(6.0);

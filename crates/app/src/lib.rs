@@ -22,6 +22,7 @@ pub mod decimate;
 pub mod model;
 pub mod palette;
 pub mod panels;
+pub mod plan_view;
 mod run;
 pub mod screenshot;
 pub mod settings;
@@ -52,7 +53,25 @@ pub fn run_window(db_path: &Path) -> anyhow::Result<()> {
 }
 
 /// The backend `run_window` uses: the store, the analysis crate, and the store's route import with the
-/// pipeline's reading analyzer.
+/// pipeline's reading analyzer followed by the stage assessment (so new readings get their stage calls
+/// and forecasts before the window reloads).
 pub fn default_backend() -> StoreBackend {
-    StoreBackend::with_analyzer(Arc::new(spallcast_pipeline::SpallcastAnalyzer))
+    StoreBackend::new(Arc::new(
+        |db: &Path, folder: &Path, progress: &mut dyn FnMut(model::ImportProgress)| {
+            let summary = store_backend::store_import(
+                db,
+                folder,
+                &spallcast_pipeline::SpallcastAnalyzer,
+                progress,
+            )?;
+            if summary.imported > 0 {
+                let mut store = spallcast_store::Store::open_existing(db)?;
+                spallcast_pipeline::assess::assess_store(
+                    &mut store,
+                    &spallcast_analysis::stage::StageOptions::default(),
+                )?;
+            }
+            Ok(summary)
+        },
+    ))
 }

@@ -66,6 +66,7 @@ pub fn options_from_env(db_path: &Path) -> anyhow::Result<StartOptions> {
         start_view,
         cautions_acknowledged: screenshot.is_some(),
         screenshot,
+        today: None,
     })
 }
 

@@ -17,13 +17,19 @@ pub enum View {
     Trend,
     /// The time waveform of one reading.
     Waveform,
-    /// Reserved for the outage-plan calendar (built by the lead later; not in [`View::TABS`] yet).
+    /// The outage-plan calendar: planned outages with their replacements, bearings that need a slot.
     OutagePlan,
 }
 
 impl View {
-    /// The views offered as tabs, in order. `OutagePlan` joins this list when its calendar exists.
-    pub const TABS: [Self; 4] = [Self::Changes, Self::Spectra, Self::Trend, Self::Waveform];
+    /// The views offered as tabs, in order.
+    pub const TABS: [Self; 5] = [
+        Self::Changes,
+        Self::Spectra,
+        Self::Trend,
+        Self::Waveform,
+        Self::OutagePlan,
+    ];
 
     /// Tab label.
     pub fn label(self) -> &'static str {
@@ -269,6 +275,6 @@ mod tests {
         assert_eq!(View::from_name(" Trend "), Some(View::Trend));
         assert_eq!(View::from_name("plan"), Some(View::OutagePlan));
         assert_eq!(View::from_name("nonsense"), None);
-        assert!(!View::TABS.contains(&View::OutagePlan));
+        assert!(View::TABS.contains(&View::OutagePlan));
     }
 }

@@ -5,6 +5,10 @@
 
 use std::path::Path;
 
+use chrono::NaiveDate;
+use spallcast_plan::PlanBoard;
+use spallcast_plan::source::PlanChange;
+
 use crate::model::{
     Attention, BearingHistory, BearingKey, ImportProgress, ImportSummary, PlantTree, ReadingId,
     ReadingSpectra, Waveform,
@@ -20,6 +24,17 @@ pub trait PlantSource: Send {
     fn bearing(&mut self, key: &BearingKey) -> anyhow::Result<BearingHistory>;
     /// The samples of one reading.
     fn waveform(&mut self, reading: ReadingId) -> anyhow::Result<Waveform>;
+    /// The outage plan as of `today`.
+    fn plan(&mut self, today: NaiveDate) -> anyhow::Result<PlanBoard>;
+    /// Applies the planner's changes; returns what was done in words and the plan read again.
+    fn change_plan(
+        &mut self,
+        today: NaiveDate,
+        changes: &[PlanChange],
+    ) -> (String, anyhow::Result<PlanBoard>);
+    /// Whether another connection (a command-line import, a second window) changed the database since
+    /// the last call.
+    fn changed_elsewhere(&mut self) -> anyhow::Result<bool>;
 }
 
 /// Opens sources, imports route folders and computes spectra. Shared by every worker thread.

@@ -80,9 +80,12 @@ pub fn summary_view(summary: &spallcast_store::ImportSummary) -> ImportSummary {
 impl Backend for StoreBackend {
     fn open(&self, db_path: &Path) -> anyhow::Result<Box<dyn PlantSource>> {
         let store = Store::open_existing(db_path)?;
+        // The baseline for `changed_elsewhere`: changes committed from now on by other connections.
+        let data_version = Some(store.data_version()?);
         Ok(Box::new(StoreSource {
             store,
             positions: HashMap::new(),
+            data_version,
         }))
     }
 
@@ -170,6 +173,8 @@ struct PositionInfo {
 struct StoreSource {
     store: Store,
     positions: HashMap<BearingKey, PositionInfo>,
+    /// `PRAGMA data_version` at the last check: it changes when another connection commits.
+    data_version: Option<i64>,
 }
 
 fn factors_of(f: Option<spallcast_store::FaultFactors>) -> Option<FaultFactors> {
@@ -319,13 +324,13 @@ impl PlantSource for StoreSource {
                 let (stage_before, diag_before) = self.day_state(&before_readings)?;
                 let what = if stage_now != stage_before {
                     format!(
-                        "stage {} → {}",
+                        "stage {} to {}",
                         crate::palette::stage_text(stage_before),
                         crate::palette::stage_text(stage_now)
                     )
                 } else if diag_now != diag_before {
                     format!(
-                        "findings {} → {}",
+                        "findings {} to {}",
                         list_or_none(&diag_before),
                         list_or_none(&diag_now)
                     )
@@ -457,6 +462,27 @@ impl PlantSource for StoreSource {
             shaft_hz: w.meta.shaft_hz,
             factors,
         })
+    }
+
+    fn plan(&mut self, today: chrono::NaiveDate) -> anyhow::Result<spallcast_plan::PlanBoard> {
+        Ok(spallcast_plan::source::load_board(&self.store, today)?)
+    }
+
+    fn change_plan(
+        &mut self,
+        today: chrono::NaiveDate,
+        changes: &[spallcast_plan::source::PlanChange],
+    ) -> (String, anyhow::Result<spallcast_plan::PlanBoard>) {
+        let (message, board) =
+            crate::plan_view::apply_changes(&mut self.store, today, None, changes);
+        (message, board.map_err(anyhow::Error::from))
+    }
+
+    fn changed_elsewhere(&mut self) -> anyhow::Result<bool> {
+        let version = self.store.data_version()?;
+        let changed = self.data_version.is_some_and(|v| v != version);
+        self.data_version = Some(version);
+        Ok(changed)
     }
 }
 

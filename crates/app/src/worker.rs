@@ -9,7 +9,10 @@ use std::sync::mpsc::{self, Receiver, Sender, TryRecvError};
 use std::thread::JoinHandle;
 use std::time::{Duration, Instant};
 
+use chrono::NaiveDate;
 use eframe::egui;
+use spallcast_plan::PlanBoard;
+use spallcast_plan::source::PlanChange;
 
 use crate::model::{
     Attention, BearingHistory, BearingKey, ImportProgress, ImportSummary, PlantTree, ReadingId,
@@ -28,6 +31,12 @@ pub enum Request {
     Spectra(ReadingId),
     /// Load a reading's samples for the waveform view.
     Waveform(ReadingId),
+    /// Read the outage plan as of a day.
+    Plan(NaiveDate),
+    /// Apply the planner's changes, then read the plan again.
+    ChangePlan(NaiveDate, Vec<PlanChange>),
+    /// Has another process changed the database?
+    CheckForChanges,
 }
 
 /// Results from the workers.
@@ -47,6 +56,12 @@ pub enum Reply {
     ImportProgress(ImportProgress),
     /// Import finished.
     ImportDone(Result<ImportSummary, String>),
+    /// The outage plan.
+    Plan(Result<PlanBoard, String>),
+    /// The planner's changes were applied: what was done, in words, and the plan read again.
+    PlanChanged(String, Result<PlanBoard, String>),
+    /// Whether another process changed the database since the last check.
+    ChangedElsewhere(bool),
 }
 
 /// The data thread of one open database. Dropping it closes the channel and joins the thread.
@@ -155,6 +170,15 @@ fn handle(backend: &dyn Backend, source: &mut dyn PlantSource, request: Request)
         }
         Request::Waveform(id) => {
             Reply::Waveform(id, source.waveform(id).map(Arc::new).map_err(text))
+        }
+        Request::Plan(today) => Reply::Plan(source.plan(today).map_err(text)),
+        Request::ChangePlan(today, changes) => {
+            let (message, board) = source.change_plan(today, &changes);
+            Reply::PlanChanged(message, board.map_err(text))
+        }
+        // A failed check is not worth a message: the next one tries again.
+        Request::CheckForChanges => {
+            Reply::ChangedElsewhere(source.changed_elsewhere().unwrap_or(false))
         }
     }
 }

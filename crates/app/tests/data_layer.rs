@@ -27,7 +27,7 @@ fn store_backend_reads_plant_attention_history_and_spectra() {
     let att = source.attention().unwrap();
     assert_eq!(att.latest_day.unwrap().to_string(), DAYS[3]);
     assert_eq!(att.changed.len(), 1);
-    assert_eq!(att.changed[0].what, "stage 1 → 2");
+    assert_eq!(att.changed[0].what, "stage 1 to 2");
 
     let h = source.bearing(&key).unwrap();
     assert_eq!(h.readings.len(), 4);

@@ -3,7 +3,8 @@
 mod common;
 
 use common::{
-    BEARING_LABEL, BPFO_ORDERS, DAYS, EVIDENCE, RPM, STAGES, build_fixture, harness, settle,
+    BEARING_LABEL, BPFO_ORDERS, DAYS, EVIDENCE, LIFT_OUTAGE, REPLACE_BY, RISK_FROM, RPM, STAGES,
+    build_fixture, drag_and_drop, harness, settle,
 };
 use egui_kittest::kittest::Queryable;
 use spallcast_app::model::BearingKey;
@@ -199,7 +200,10 @@ fn evidence_trend_and_waveform_views_show_the_bearing() {
     assert_eq!(t.staged_readings, 4, "a stage numeral at every reading");
     assert_eq!(t.replacements, 1, "the 2026-02-01 replacement");
     assert!(t.zone_lines, "ISO 20816-3 zone lines on overall velocity");
-    assert!(!t.forecast, "no forecast stored in this database");
+    assert!(
+        t.forecast,
+        "the forecast stored with the latest call is projected"
+    );
 
     h.get_by_label("Waveform").click();
     h.step();
@@ -292,4 +296,102 @@ fn import_route_folder_in_background_then_show_summary() {
     settle(&mut h);
     let again = h.state().import_summary().unwrap().as_ref().unwrap();
     assert_eq!((again.imported, again.already_present), (0, 1));
+}
+
+#[test]
+fn outage_plan_tab_drag_a_bearing_onto_an_outage_stores_the_plan() {
+    let fx = build_fixture();
+    let mut h = harness(&fx.db, true);
+    settle(&mut h);
+    h.get_by_label(View::OutagePlan.label()).click();
+    h.step();
+    settle(&mut h);
+    assert_eq!(h.state().state.view, View::OutagePlan);
+    // The board was read on the data thread, with the forecast stored beside the latest stage call.
+    let board = &h.state().plan_panel().expect("plan loaded").board;
+    let need = board
+        .open_needs()
+        .into_iter()
+        .find(|n| n.life.machine_id == "TP-P1" && n.life.position == "DE")
+        .expect("the stage-2 bearing needs a slot");
+    assert_eq!(need.forecast.replace_by.to_string(), REPLACE_BY);
+    assert_eq!(need.forecast.risk_from.to_string(), RISK_FROM);
+    let life_id = need.life.life_id;
+    // Suggested: the lift-station stop, the last outage that takes the pump down before 15 June.
+    assert!(
+        h.query_by_label(&format!("Plan TP-P1 DE in {LIFT_OUTAGE}"))
+            .is_some()
+    );
+
+    let from = h.get_by_label("TP-P1 DE").rect().center();
+    let to = h.get_by_label("Chlorine store stop").rect().center();
+    drag_and_drop(&mut h, from, to);
+    settle(&mut h);
+
+    let store = spallcast_store::Store::open_existing(&fx.db).unwrap();
+    let outage = store
+        .outages()
+        .unwrap()
+        .into_iter()
+        .find(|o| o.name == "Chlorine store stop")
+        .unwrap();
+    let planned: Vec<(i64, i64)> = store
+        .plan_entries(None)
+        .unwrap()
+        .iter()
+        .map(|e| (e.life_id, e.outage_id))
+        .collect();
+    assert_eq!(planned, vec![(life_id, outage.id)]);
+    // The view read the plan again and says, in words, that this stop does not take the pump down.
+    let panel = h.state().plan_panel().unwrap();
+    assert_eq!(panel.board.tasks_in(outage.id).len(), 1);
+    let message = panel.message.clone().unwrap_or_default();
+    assert!(
+        message.contains("does not take machine TP-P1 down"),
+        "{message}"
+    );
+}
+
+#[test]
+fn changes_made_by_another_program_show_up_without_reopening() {
+    let fx = build_fixture();
+    let mut h = harness(&fx.db, true);
+    settle(&mut h);
+    let nde = BearingKey {
+        machine_id: "TP-P1".to_owned(),
+        position: "NDE".to_owned(),
+    };
+    assert_eq!(
+        h.state().plant().unwrap().bearing(&nde).unwrap().stage,
+        None
+    );
+    // Another connection, as a command-line import or stage run in another process would, stores a
+    // stage call on the NDE bearing's latest reading.
+    {
+        let mut store = spallcast_store::Store::open_existing(&fx.db).unwrap();
+        let state = store
+            .latest_states()
+            .unwrap()
+            .into_iter()
+            .find(|s| s.machine == "TP-P1" && s.position == "NDE")
+            .unwrap();
+        let evidence = serde_json::json!({ "evidence": ["set by another program"] });
+        store
+            .put_stage_call(
+                state.last_reading_id.unwrap(),
+                1,
+                "window-test-1",
+                &evidence,
+            )
+            .unwrap();
+    }
+    // The window checks every few seconds; wait past one check, then let it read the plant again.
+    std::thread::sleep(std::time::Duration::from_millis(3300));
+    h.step();
+    settle(&mut h);
+    assert_eq!(
+        h.state().plant().unwrap().bearing(&nde).unwrap().stage,
+        Some(1),
+        "the badge follows the database"
+    );
 }

@@ -145,3 +145,65 @@ fn the_runner_stores_a_call_per_reading_and_replays_the_replaced_life() {
         std::fs::copy(&db, keep).unwrap();
     }
 }
+
+/// The planner reads the forecast the runner stores with each call: a bearing whose current life is in
+/// stage 2 needs a slot, with the same replace-by and risk-from dates as the runner's summary.
+#[test]
+fn the_planner_reads_the_runners_stored_forecast() {
+    let tmp = tempfile::tempdir().unwrap();
+    let db = tmp.path().join("plant.sqlite");
+    let mut store = Store::open(&db).unwrap();
+    // The same plant, but the faulty bearing is still in: no replacement history.
+    let plant = PLANT.replace(
+        "installed = \"2025-09-01\"\n    history = [ { installed = \"2024-12-01\", removed = \"2025-09-01\", found = \"outer race spall\" } ]",
+        "installed = \"2024-12-01\"",
+    );
+    assert_ne!(plant, PLANT, "the fixture edit applied");
+    store
+        .apply_plant(&PlantFile::parse(&plant, Path::new("plant.toml")).unwrap())
+        .unwrap();
+    let or = |s: u8, sev: f64| Condition::new(FaultKind::OuterRace, Stage::new(s).unwrap(), sev);
+    let days = [
+        ("2025-01-05", Condition::healthy()),
+        ("2025-02-05", Condition::healthy()),
+        ("2025-03-05", Condition::healthy()),
+        ("2025-04-05", Condition::healthy()),
+        ("2025-05-05", or(2, 0.3)),
+        ("2025-06-05", or(2, 0.6)),
+        ("2025-07-05", or(2, 0.9)),
+    ];
+    for (i, (day, c)) in days.iter().enumerate() {
+        let dir = tmp.path().join(format!("route-{day}"));
+        write_route(&dir, day, c, 300 + i as u64);
+        store
+            .import_route(&dir, &SpallcastAnalyzer, &mut |_, _| {})
+            .unwrap();
+    }
+    let report = assess_store(&mut store, &StageOptions::default()).unwrap();
+    let summary = &report.summaries[0];
+    println!("{summary:#?}");
+    assert!(summary.stage.is_some_and(|s| s >= 2), "{summary:#?}");
+    let replace_by = summary
+        .replace_by
+        .expect("a stage-2 life has a replace-by date")
+        .date_naive();
+    let risk_from = summary
+        .risk_from
+        .expect("and a risk-from date")
+        .date_naive();
+
+    let today = "2025-07-06".parse().unwrap();
+    let board = spallcast_plan::source::load_board(&store, today).unwrap();
+    let need = board
+        .needs
+        .iter()
+        .find(|n| n.life.machine_id == "FL-P2" && n.life.position == "PDE")
+        .expect("the stage-2 bearing needs a slot");
+    assert_eq!(need.forecast.replace_by, replace_by);
+    assert_eq!(need.forecast.risk_from, risk_from);
+    assert_eq!(Some(need.forecast.stage), summary.stage);
+    assert!(
+        !need.forecast.evidence.is_empty(),
+        "the call's evidence sentences come along"
+    );
+}

@@ -166,9 +166,11 @@ pub fn current_lives(store: &Store) -> Result<Vec<BearingLife>> {
 }
 
 /// Forecasts of current lives read from their latest stage call: the call must be on a reading of
-/// that life and carry `replace_by` and `risk_from` dates (`YYYY-MM-DD`, at the top level of the
-/// evidence document or under `forecast`). Its `evidence` sentences (an array of strings, or a string)
-/// become the evidence text. Lives without such a call are left out.
+/// that life and carry `replace_by` and `risk_from` (at the top level of the evidence document or
+/// under `forecast`), each either a date (`YYYY-MM-DD`) or the stage runner's projection
+/// (`{"t_s": .., "lo_s": .., "hi_s": ..}`, seconds on the Unix axis; the central `t_s` is used). Its
+/// `evidence` sentences (an array of strings, or a string, at the top level or under `call`) become
+/// the evidence text. Lives without such a call are left out.
 pub fn stored_forecasts(store: &Store) -> Result<BTreeMap<i64, Forecast>> {
     let mut out = BTreeMap::new();
     for state in store.latest_states()? {
@@ -188,13 +190,29 @@ pub fn stored_forecasts(store: &Store) -> Result<BTreeMap<i64, Forecast>> {
 /// Reads a forecast from a stage-call document (see [`stored_forecasts`]).
 pub fn forecast_from_document(stage: u8, doc: &serde_json::Value) -> Option<Forecast> {
     let date = |key: &str| {
-        doc.get(key)
-            .or_else(|| doc.get("forecast").and_then(|f| f.get(key)))
-            .and_then(serde_json::Value::as_str)
-            .and_then(|s| s.get(..10))
-            .and_then(|s| s.parse::<NaiveDate>().ok())
+        let value = doc
+            .get(key)
+            .or_else(|| doc.get("forecast").and_then(|f| f.get(key)))?;
+        match value {
+            // A date (or date-time) as text.
+            serde_json::Value::String(s) => s.get(..10)?.parse::<NaiveDate>().ok(),
+            // The stage runner's projection: `{ "t_s": central estimate, seconds on the Unix axis,
+            // "lo_s", "hi_s" }`; the central estimate is the date planned against.
+            serde_json::Value::Object(p) => {
+                let t_s = p.get("t_s")?.as_f64()?;
+                if !t_s.is_finite() {
+                    return None;
+                }
+                chrono::DateTime::from_timestamp(t_s.floor() as i64, 0).map(|t| t.date_naive())
+            }
+            _ => None,
+        }
     };
-    let evidence = match doc.get("evidence") {
+    // Evidence sentences: top level, or the stage runner's `call.evidence`.
+    let evidence_value = doc
+        .get("evidence")
+        .or_else(|| doc.get("call").and_then(|c| c.get("evidence")));
+    let evidence = match evidence_value {
         Some(serde_json::Value::Array(items)) => items
             .iter()
             .filter_map(serde_json::Value::as_str)

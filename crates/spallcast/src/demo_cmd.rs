@@ -24,6 +24,8 @@ pub fn run(args: &DemoArgs) -> Result<ExitCode> {
 
 /// Opens the window on `db` (default: the demo database, created first if missing).
 pub fn open_window(db: Option<PathBuf>) -> Result<ExitCode> {
+    // Say so before spending seconds on the demo plant when the window cannot open anyway.
+    spallcast_app::check_display()?;
     let db = if let Some(path) = db {
         if !path.exists() {
             anyhow::bail!(
@@ -39,13 +41,8 @@ pub fn open_window(db: Option<PathBuf>) -> Result<ExitCode> {
         }
         path
     };
-    // The window (crates/app) is not part of this build yet: show the plant overview instead.
-    eprintln!(
-        "spallcast: the workstation window is not part of this build yet; plant overview of {} follows \
-         (see `spallcast --help` for the other commands)",
-        db.display()
-    );
-    crate::bearings_cmd::run_bearings(&crate::bearings_cmd::BearingsArgs { db, json: false })
+    spallcast_app::run_window(&db)?;
+    Ok(ExitCode::SUCCESS)
 }
 
 fn print_step(step: &str, done: usize, total: usize) {

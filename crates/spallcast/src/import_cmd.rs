@@ -54,6 +54,24 @@ pub fn run(args: &ImportArgs, analyzer: &dyn ReadingAnalyzer) -> anyhow::Result<
         bar.set_position(done as u64);
     })?;
     bar.finish_and_clear();
+    // Stage calls and forecasts follow the new readings at once, so `bearings`, the window and the
+    // planner see them. A failure here does not undo the import: it is reported and the next
+    // `spallcast bearings` tries again.
+    if summary.new_readings > 0 {
+        match spallcast_pipeline::assess::assess_store(
+            &mut store,
+            &spallcast_analysis::stage::StageOptions::default(),
+        ) {
+            Ok(report) if !args.json => eprintln!(
+                "stage calls updated: {} readings of {} bearing positions",
+                report.calls_written, report.positions
+            ),
+            Ok(_) => {}
+            Err(err) => eprintln!(
+                "spallcast: warning: the stage assessment after the import failed: {err:#}"
+            ),
+        }
+    }
     if args.json {
         println!("{}", serde_json::to_string_pretty(&summary)?);
     } else {

@@ -49,6 +49,21 @@ impl ReadingAnalyzer for Stats {
     }
 }
 
+/// As many scalars per reading as the real analyzer stores (about 60: indicators, band energies,
+/// fault-tone levels, stage indicators).
+fn bench_scalars(rms: f64) -> BTreeMap<String, f64> {
+    let mut m = BTreeMap::from([
+        ("accel_rms_g".to_owned(), rms),
+        ("accel_peak_g".to_owned(), rms * 3.5),
+        ("crest_factor".to_owned(), 3.5),
+        ("kurtosis".to_owned(), 3.1),
+    ]);
+    for i in 0..56 {
+        m.insert(format!("band.{i:02}_db"), rms * f64::from(i));
+    }
+    m
+}
+
 fn plant(machines: usize, bearings_per_machine: usize) -> PlantFile {
     let mut t = String::from(
         "[site]\nname = \"Bench Works\"\n\n[[bearing_types]]\ndesignation = \"BX-1\"\nkind = \"ball\"\n\
@@ -150,6 +165,11 @@ fn bench_scale() {
     let start = Instant::now();
     let t0: DateTime<FixedOffset> =
         DateTime::parse_from_rfc3339("2016-02-01T09:00:00+01:00").unwrap();
+    let evidence = serde_json::json!({
+        "call": { "stage": 1, "reasons": vec!["ultrasonic-band energy 9.1 dB over baseline (threshold 6 dB)"; 6] },
+        "forecast": { "replace_by": "2027-03-01", "risk_from": "2027-05-01", "interval_days": [40, 160] },
+        "point": "M0-B0",
+    });
     let hashes: Vec<String> = (0..point_ids.len()).map(|i| format!("{i:064x}")).collect();
     for month in 0..MONTHS {
         let taken_at = t0.checked_add_months(Months::new(month)).unwrap();
@@ -171,18 +191,19 @@ fn bench_scale() {
                         clipped_fraction: 0.0,
                     },
                     AnalysisOutput {
-                        scalars: BTreeMap::from([
-                            ("accel_rms_g".to_owned(), rms),
-                            ("accel_peak_g".to_owned(), rms * 3.5),
-                            ("crest_factor".to_owned(), 3.5),
-                            ("kurtosis".to_owned(), 3.1),
-                        ]),
+                        scalars: bench_scalars(rms),
                         document: serde_json::json!({ "diagnosis": "none" }),
                     },
                 )
             })
             .collect();
-        store.add_readings(&batch, "bench").unwrap();
+        let ids = store.add_readings(&batch, "bench").unwrap();
+        // Every reading gets a stage call with evidence of a realistic size, as the stage runner writes.
+        for id in ids.into_iter().flatten() {
+            store
+                .put_stage_call(id, (month / 40) as u8, "bench-stage", &evidence)
+                .unwrap();
+        }
     }
     println!(
         "scale: {} bearings x {MONTHS} months = {} readings written in {:.1} s",

@@ -3,6 +3,7 @@
 
 use std::collections::HashMap;
 use std::fmt::Write as _;
+use std::io::Read as _;
 use std::path::{Component, Path, PathBuf};
 
 use chrono::{DateTime, FixedOffset, Utc};
@@ -103,6 +104,31 @@ struct Work {
     row: ManifestRow,
     path: PathBuf,
     point: PointCtx,
+    /// Content hashes of readings already stored at this point and time (almost always none): a file
+    /// whose hash is among them is a duplicate and is not decoded.
+    known_hashes: Vec<String>,
+}
+
+/// What the workers made of one manifest row.
+enum Outcome {
+    Rejected(String),
+    Duplicate,
+    Ready(String, Prepared),
+}
+
+/// Hashes, checks for a duplicate, decodes and analyses one row (runs on a worker thread).
+fn process(w: &Work, root: &Path, analyzer: &dyn ReadingAnalyzer) -> Outcome {
+    let hash = match hash_file(&w.path, root) {
+        Ok(h) => h,
+        Err(reason) => return Outcome::Rejected(reason),
+    };
+    if w.known_hashes.contains(&hash) {
+        return Outcome::Duplicate;
+    }
+    match prepare(w, analyzer) {
+        Ok(p) => Outcome::Ready(hash, p),
+        Err(reason) => Outcome::Rejected(reason),
+    }
 }
 
 /// A decoded, analysed reading ready to write.
@@ -162,11 +188,34 @@ fn hash_file(path: &Path, root: &Path) -> std::result::Result<String, String> {
     if !meta.is_file() {
         return Err("not a regular file".to_owned());
     }
-    let bytes = std::fs::read(path).map_err(|e| format!("cannot read the file: {e}"))?;
-    if bytes.is_empty() {
+    // Streamed, so memory stays one buffer whatever the file's size; capped like the readers.
+    let limit = spallcast_formats::MAX_FILE_BYTES;
+    let mut file = std::fs::File::open(&real)
+        .map_err(|e| format!("cannot read the file: {e}"))?
+        .take(limit + 1);
+    let mut hasher = Sha256::new();
+    let mut buf = vec![0_u8; 1 << 16];
+    let mut total: u64 = 0;
+    loop {
+        let n = match file.read(&mut buf) {
+            Ok(0) => break,
+            Ok(n) => n,
+            Err(e) if e.kind() == std::io::ErrorKind::Interrupted => continue,
+            Err(e) => return Err(format!("cannot read the file: {e}")),
+        };
+        total += n as u64;
+        if total > limit {
+            return Err(format!(
+                "the file is larger than {} MiB, the most a recording may be",
+                limit >> 20
+            ));
+        }
+        hasher.update(&buf[..n]);
+    }
+    if total == 0 {
         return Err("the file is empty".to_owned());
     }
-    let digest = Sha256::digest(&bytes);
+    let digest = hasher.finalize();
     let mut hex = String::with_capacity(64);
     for b in digest {
         let _ = write!(hex, "{b:02x}");
@@ -364,9 +413,8 @@ fn previous_label(
     clippy::struct_field_names,
     reason = "run_id is the id of the import run"
 )]
-struct Run<'a> {
+struct Run {
     root: PathBuf,
-    analyzer: &'a dyn ReadingAnalyzer,
     version: String,
     run_id: i64,
     summary: ImportSummary,
@@ -446,7 +494,6 @@ impl Store {
         })?;
         let mut run = Run {
             root,
-            analyzer,
             version: version.clone(),
             run_id,
             summary: ImportSummary {
@@ -492,10 +539,15 @@ impl Store {
                             &row,
                         ));
                     } else if let Some(point) = points.get(&row.point) {
+                        let known_hashes = self.hashes_at(
+                            point.point_id,
+                            &utc_text(row.taken_at.with_timezone(&Utc)),
+                        )?;
                         work.push(Work {
                             path: dir.join(&row.file),
                             point: point.clone(),
                             row,
+                            known_hashes,
                         });
                     } else {
                         let reason =
@@ -509,15 +561,42 @@ impl Store {
         self.log_rejects(run_id, &early_rejects)?;
         let mut done = total - work.len();
         progress(done, total);
-        let chunk = 2 * rayon::current_num_threads().max(1);
+        // Two stages overlap: the worker pool hashes, decodes and analyses chunk k + 1 while this
+        // thread writes chunk k. One chunk waits in the channel at most, so memory stays a few chunks
+        // of recordings whatever the route's size. Order is kept, so results do not depend on timing.
+        let chunk = 4 * rayon::current_num_threads().max(1);
+        let mut chunks = Vec::new();
         let mut rest = work;
         while !rest.is_empty() {
             let tail = rest.split_off(chunk.min(rest.len()));
-            let batch = std::mem::replace(&mut rest, tail);
-            done += batch.len();
-            self.import_chunk(&mut run, batch)?;
-            progress(done, total);
+            chunks.push(std::mem::replace(&mut rest, tail));
         }
+        let root = run.root.clone();
+        std::thread::scope(|scope| -> Result<()> {
+            let (sender, receiver) = std::sync::mpsc::sync_channel::<Vec<(Work, Outcome)>>(1);
+            let root = &root;
+            scope.spawn(move || {
+                for batch in chunks {
+                    let processed: Vec<(Work, Outcome)> = batch
+                        .into_par_iter()
+                        .map(|w| {
+                            let outcome = process(&w, root, analyzer);
+                            (w, outcome)
+                        })
+                        .collect();
+                    // The writer stopped (database error): stop too.
+                    if sender.send(processed).is_err() {
+                        break;
+                    }
+                }
+            });
+            for processed in receiver {
+                done += processed.len();
+                self.write_chunk(&mut run, processed)?;
+                progress(done, total);
+            }
+            Ok(())
+        })?;
         self.conn.execute(
             "UPDATE import_run SET finished_at = ?2, new_readings = ?3, duplicates = ?4, rejected = ?5 WHERE id = ?1",
             params![
@@ -531,130 +610,93 @@ impl Store {
         Ok(run.summary)
     }
 
-    fn import_chunk(&mut self, run: &mut Run<'_>, batch: Vec<Work>) -> Result<()> {
-        // Hash in parallel; cheap duplicate check before any decoding.
-        let hashed: Vec<(Work, std::result::Result<String, String>)> = batch
-            .into_par_iter()
-            .map(|w| {
-                let h = hash_file(&w.path, &run.root);
-                (w, h)
-            })
-            .collect();
-        let mut to_decode = Vec::new();
-        let mut rejects = Vec::new();
-        for (w, hash) in hashed {
-            match hash {
-                Err(reason) => rejects.push(RejectedFile {
-                    file: w.row.file.clone(),
-                    line: Some(w.row.line),
-                    point: Some(w.row.point.clone()),
-                    reason,
-                }),
-                Ok(hash) => {
-                    let utc = utc_text(w.row.taken_at.with_timezone(&Utc));
-                    let exists: bool = self
-                        .conn
-                        .prepare_cached(
-                            "SELECT EXISTS (SELECT 1 FROM reading WHERE content_sha256 = ?1 AND point_id = ?2 AND taken_at_utc = ?3)",
-                        )?
-                        .query_row(params![hash, w.point.point_id, utc], |r| r.get(0))?;
-                    if exists {
-                        self.log_outcome(run.run_id, &w.row, "duplicate", None, None)?;
-                        run.summary.duplicates += 1;
-                    } else {
-                        to_decode.push((w, hash));
-                    }
-                }
-            }
-        }
-        let analyzer = run.analyzer;
-        let prepared: Vec<((Work, String), std::result::Result<Prepared, String>)> = to_decode
-            .into_par_iter()
-            .map(|item| {
-                let p = prepare(&item.0, analyzer);
-                (item, p)
-            })
-            .collect();
-        for ((w, hash), p) in prepared {
-            match p {
-                Err(reason) => rejects.push(RejectedFile {
-                    file: w.row.file.clone(),
-                    line: Some(w.row.line),
-                    point: Some(w.row.point.clone()),
-                    reason,
-                }),
-                Ok(p) => self.write_one(run, &w, &hash, &p)?,
-            }
-        }
-        self.log_rejects(run.run_id, &rejects)?;
-        run.summary.rejected.extend(rejects);
-        Ok(())
-    }
-
-    fn write_one(&mut self, run: &mut Run<'_>, w: &Work, hash: &str, p: &Prepared) -> Result<()> {
+    /// Writes one processed chunk in one transaction: its new readings with their results, its
+    /// duplicates and rejects in the import log. Each reading is complete or absent (a crash loses
+    /// the whole chunk, which a re-run imports again). The summary changes only after the commit.
+    fn write_chunk(&mut self, run: &mut Run, processed: Vec<(Work, Outcome)>) -> Result<()> {
         let now = now_text();
-        let new = NewReading {
-            point_id: w.point.point_id,
-            taken_at: w.row.taken_at,
-            shaft_hz: w.row.rpm / 60.0,
-            sample_rate_hz: p.sample_rate_hz,
-            units: w.row.units.as_str(),
-            samples_g: &p.samples_g,
-            source_file: &w.row.file,
-            content_sha256: hash,
-            clipped_fraction: p.clipped_fraction,
-        };
         let tx = self
             .conn
             .transaction_with_behavior(rusqlite::TransactionBehavior::Immediate)?;
-        let id = insert_reading(&tx, &new, &p.output, &run.version, &now)?;
-        match id {
-            None => {
-                log_outcome_tx(&tx, run.run_id, &w.row, "duplicate", None, None)?;
-                tx.commit()?;
-                run.summary.duplicates += 1;
-            }
-            Some(id) => {
-                log_outcome_tx(&tx, run.run_id, &w.row, "imported", None, Some(id))?;
-                let utc = utc_text(w.row.taken_at.with_timezone(&Utc));
-                let previous = previous_label(&tx, w.point.point_id, &utc)?;
-                tx.commit()?;
-                run.summary.new_readings += 1;
-                if p.clipped_fraction >= CLIPPED_FRACTION_THRESHOLD {
-                    run.summary.clipped.push(w.row.file.clone());
-                }
-                if let (Some(previous), Some(current)) = (previous, diagnosis_label(&p.output))
-                    && previous != current
-                {
-                    run.summary.finding_changes.push(FindingChange {
-                        machine: w.point.machine.clone(),
-                        position: w.point.position.clone(),
-                        point: w.row.point.clone(),
-                        reading_id: id,
-                        taken_at: w.row.taken_at,
-                        previous,
-                        current,
+        let mut new_readings = 0;
+        let mut duplicates = 0;
+        let mut rejects = Vec::new();
+        let mut clipped = Vec::new();
+        let mut changes = Vec::new();
+        for (w, outcome) in processed {
+            let (hash, p) = match outcome {
+                Outcome::Rejected(reason) => {
+                    log_outcome_tx(&tx, run.run_id, &w.row, "rejected", Some(&reason), None)?;
+                    rejects.push(RejectedFile {
+                        file: w.row.file.clone(),
+                        line: Some(w.row.line),
+                        point: Some(w.row.point.clone()),
+                        reason,
                     });
+                    continue;
                 }
+                Outcome::Duplicate => {
+                    log_outcome_tx(&tx, run.run_id, &w.row, "duplicate", None, None)?;
+                    duplicates += 1;
+                    continue;
+                }
+                Outcome::Ready(hash, p) => (hash, p),
+            };
+            let new = NewReading {
+                point_id: w.point.point_id,
+                taken_at: w.row.taken_at,
+                shaft_hz: w.row.rpm / 60.0,
+                sample_rate_hz: p.sample_rate_hz,
+                units: w.row.units.as_str(),
+                samples_g: &p.samples_g,
+                source_file: &w.row.file,
+                content_sha256: &hash,
+                clipped_fraction: p.clipped_fraction,
+            };
+            let Some(id) = insert_reading(&tx, &new, &p.output, &run.version, &now)? else {
+                // The same file twice in one manifest, or a reading stored meanwhile by another
+                // process: the table's unique key keeps one.
+                log_outcome_tx(&tx, run.run_id, &w.row, "duplicate", None, None)?;
+                duplicates += 1;
+                continue;
+            };
+            log_outcome_tx(&tx, run.run_id, &w.row, "imported", None, Some(id))?;
+            new_readings += 1;
+            if p.clipped_fraction >= CLIPPED_FRACTION_THRESHOLD {
+                clipped.push(w.row.file.clone());
+            }
+            let utc = utc_text(w.row.taken_at.with_timezone(&Utc));
+            let previous = previous_label(&tx, w.point.point_id, &utc)?;
+            if let (Some(previous), Some(current)) = (previous, diagnosis_label(&p.output))
+                && previous != current
+            {
+                changes.push(FindingChange {
+                    machine: w.point.machine.clone(),
+                    position: w.point.position.clone(),
+                    point: w.row.point.clone(),
+                    reading_id: id,
+                    taken_at: w.row.taken_at,
+                    previous,
+                    current,
+                });
             }
         }
+        tx.commit()?;
+        run.summary.new_readings += new_readings;
+        run.summary.duplicates += duplicates;
+        run.summary.rejected.extend(rejects);
+        run.summary.clipped.extend(clipped);
+        run.summary.finding_changes.extend(changes);
         Ok(())
     }
 
-    fn log_outcome(
-        &self,
-        run_id: i64,
-        row: &ManifestRow,
-        outcome: &str,
-        reason: Option<&str>,
-        id: Option<i64>,
-    ) -> Result<()> {
-        self.conn
-            .prepare_cached(
-                "INSERT INTO import_log (run_id, file, point, outcome, reason, reading_id) VALUES (?1, ?2, ?3, ?4, ?5, ?6)",
-            )?
-            .execute(params![run_id, row.file, row.point, outcome, reason, id])?;
-        Ok(())
+    /// Content hashes of the readings stored at a point and UTC time.
+    fn hashes_at(&self, point_id: i64, utc: &str) -> Result<Vec<String>> {
+        let mut stmt = self.conn.prepare_cached(
+            "SELECT content_sha256 FROM reading WHERE point_id = ?1 AND taken_at_utc = ?2",
+        )?;
+        let rows = stmt.query_map(params![point_id, utc], |r| r.get(0))?;
+        Ok(rows.collect::<std::result::Result<Vec<_>, _>>()?)
     }
 
     fn log_rejects(&mut self, run_id: i64, rejects: &[RejectedFile]) -> Result<()> {

@@ -418,12 +418,18 @@ impl Store {
                 "stage {stage} is outside 0..=4"
             )));
         }
-        self.conn.execute(
-            "INSERT INTO stage_call (reading_id, stage, version, evidence, called_at) VALUES (?1, ?2, ?3, ?4, ?5)
+        let n = self.conn.execute(
+            "INSERT INTO stage_call (reading_id, stage, version, evidence, called_at, position_id, taken_at_utc)
+             SELECT r.id, ?2, ?3, ?4, ?5, r.position_id, r.taken_at_utc FROM reading r WHERE r.id = ?1
              ON CONFLICT (reading_id) DO UPDATE SET stage = excluded.stage, version = excluded.version,
                 evidence = excluded.evidence, called_at = excluded.called_at",
             params![reading_id, stage, version, serde_json::to_string(evidence)?, crate::now_text()],
         )?;
+        if n == 0 {
+            return Err(StoreError::Invalid(format!(
+                "no reading {reading_id} to record a stage call on"
+            )));
+        }
         Ok(())
     }
 

@@ -442,29 +442,52 @@ impl Store {
 
     /// Latest state of every bearing position: current life, last reading and its scalars, latest
     /// stage call. Ordered as the plant tree.
+    ///
+    /// Three set-based statements whatever the plant's size (positions with their latest reading and
+    /// call found through indexes; the scalars of all latest readings; the latest calls), not a query
+    /// per bearing.
     pub fn latest_states(&self) -> Result<Vec<BearingState>> {
+        const LAST_READING: &str = "(SELECT r.id FROM reading r WHERE r.position_id = bp.id
+                                     ORDER BY r.taken_at_utc DESC, r.id DESC LIMIT 1)";
+        const LAST_CALL: &str = "(SELECT s.reading_id FROM stage_call s WHERE s.position_id = bp.id
+                                  ORDER BY s.taken_at_utc DESC, s.reading_id DESC LIMIT 1)";
         let c = &self.conn;
-        let mut stmt = c.prepare(
+        let mut scalars: HashMap<i64, BTreeMap<String, f64>> = HashMap::new();
+        let mut stmt = c.prepare(&format!(
+            "SELECT s.reading_id, s.name, s.value FROM reading_scalar s
+             WHERE s.reading_id IN (SELECT {LAST_READING} FROM bearing_position bp)"
+        ))?;
+        let mut rows = stmt.query([])?;
+        while let Some(r) = rows.next()? {
+            scalars
+                .entry(r.get(0)?)
+                .or_default()
+                .insert(r.get(1)?, r.get(2)?);
+        }
+        let mut calls: HashMap<i64, StageCall> = HashMap::new();
+        let mut stmt = c.prepare(&format!(
+            "SELECT reading_id, stage, version, evidence, called_at FROM stage_call
+             WHERE reading_id IN (SELECT {LAST_CALL} FROM bearing_position bp)"
+        ))?;
+        let mut rows = stmt.query([])?;
+        while let Some(r) = rows.next()? {
+            let call =
+                stage_call_from_row((r.get(0)?, r.get(1)?, r.get(2)?, r.get(3)?, r.get(4)?))?;
+            calls.insert(call.reading_id, call);
+        }
+        let mut stmt = c.prepare(&format!(
             "SELECT bp.id, a.name, m.tag, m.name, bp.position, bp.lubrication,
                     l.id, l.position_id, l.installed, l.removed, l.found_condition,
-                    (SELECT r.id FROM reading r WHERE r.position_id = bp.id ORDER BY r.taken_at_utc DESC LIMIT 1) AS last_id
+                    last.id, last.taken_at_utc, last.utc_offset_s, {LAST_CALL}
              FROM bearing_position bp JOIN machine m ON m.id = bp.machine_id JOIN area a ON a.id = m.area_id
              LEFT JOIN bearing_life l ON l.id = (SELECT l2.id FROM bearing_life l2 WHERE l2.position_id = bp.id
                                                  ORDER BY l2.installed DESC LIMIT 1)
-             ORDER BY a.sort_order, a.id, m.sort_order, m.id, bp.sort_order, bp.id",
-        )?;
+             LEFT JOIN reading last ON last.id = {LAST_READING}
+             ORDER BY a.sort_order, a.id, m.sort_order, m.id, bp.sort_order, bp.id"
+        ))?;
         let mut out = Vec::new();
         let mut rows = stmt.query([])?;
-        let mut last_stmt =
-            c.prepare_cached("SELECT taken_at_utc, utc_offset_s FROM reading WHERE id = ?1")?;
-        let mut scalar_stmt =
-            c.prepare_cached("SELECT name, value FROM reading_scalar WHERE reading_id = ?1")?;
-        let mut stage_stmt = c.prepare_cached(
-            "SELECT s.reading_id, s.stage, s.version, s.evidence, s.called_at FROM reading r
-             JOIN stage_call s ON s.reading_id = r.id WHERE r.position_id = ?1 ORDER BY r.taken_at_utc DESC LIMIT 1",
-        )?;
         while let Some(r) = rows.next()? {
-            let position_id: i64 = r.get(0)?;
             let life = match r.get::<_, Option<i64>>(6)? {
                 Some(id) => Some(LifeInfo {
                     id,
@@ -476,26 +499,21 @@ impl Store {
                 None => None,
             };
             let last_reading_id: Option<i64> = r.get(11)?;
-            let mut last_reading_at = None;
-            let mut latest_scalars = BTreeMap::new();
-            if let Some(rid) = last_reading_id {
-                let (utc, off): (String, i32) =
-                    last_stmt.query_row([rid], |r| Ok((r.get(0)?, r.get(1)?)))?;
-                last_reading_at = Some(crate::local_time(&utc, off)?);
-                let mut srows = scalar_stmt.query([rid])?;
-                while let Some(s) = srows.next()? {
-                    latest_scalars.insert(s.get(0)?, s.get(1)?);
-                }
-            }
-            let latest_stage = stage_stmt
-                .query_row([position_id], |r| {
-                    Ok((r.get(0)?, r.get(1)?, r.get(2)?, r.get(3)?, r.get(4)?))
-                })
-                .optional()?
-                .map(stage_call_from_row)
-                .transpose()?;
+            let last_reading_at = match (
+                r.get::<_, Option<String>>(12)?,
+                r.get::<_, Option<i32>>(13)?,
+            ) {
+                (Some(utc), Some(off)) => Some(crate::local_time(&utc, off)?),
+                _ => None,
+            };
+            let latest_scalars = last_reading_id
+                .and_then(|id| scalars.remove(&id))
+                .unwrap_or_default();
+            let latest_stage = r
+                .get::<_, Option<i64>>(14)?
+                .and_then(|id| calls.remove(&id));
             out.push(BearingState {
-                position_id,
+                position_id: r.get(0)?,
                 area: r.get(1)?,
                 machine: r.get(2)?,
                 machine_name: r.get(3)?,

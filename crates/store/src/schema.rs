@@ -176,6 +176,16 @@ CREATE TABLE stage_call (
     called_at TEXT NOT NULL
 );
 ",
+    // 4: the latest stage call of a position without scanning its readings: the call carries its
+    // reading's position and time (a reading's point and time never change).
+    r"
+ALTER TABLE stage_call ADD COLUMN position_id INTEGER;
+ALTER TABLE stage_call ADD COLUMN taken_at_utc TEXT;
+UPDATE stage_call SET
+    position_id = (SELECT r.position_id FROM reading r WHERE r.id = stage_call.reading_id),
+    taken_at_utc = (SELECT r.taken_at_utc FROM reading r WHERE r.id = stage_call.reading_id);
+CREATE INDEX stage_call_position_time ON stage_call(position_id, taken_at_utc);
+",
 ];
 
 impl Store {
@@ -283,6 +293,15 @@ impl Store {
         Ok(self
             .conn
             .pragma_query_value(None, "user_version", |r| r.get(0))?)
+    }
+
+    /// `SQLite`'s `PRAGMA data_version` of this connection: it changes when another connection (another
+    /// process, another thread's store) commits a change to the database, not for this one's own writes.
+    /// A window polls it to pick up readings imported elsewhere.
+    pub fn data_version(&self) -> Result<i64> {
+        Ok(self
+            .conn
+            .pragma_query_value(None, "data_version", |r| r.get(0))?)
     }
 
     /// The database file.

@@ -55,7 +55,7 @@ impl ChangesPanel {
                         for c in &att.changed {
                             ui.horizontal(|ui| {
                                 palette::stage_badge_ui(ui, c.stage_before);
-                                ui.label("→");
+                                ui.label("to");
                                 palette::stage_badge_ui(ui, c.stage_now);
                             });
                             if ui.link(c.key.display()).clicked() {

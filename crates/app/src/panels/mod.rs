@@ -2,7 +2,6 @@
 
 pub mod bearing_ui;
 pub mod changes_ui;
-pub mod outage_plan_ui;
 pub mod spectra_ui;
 pub mod tree_ui;
 pub mod trend_ui;

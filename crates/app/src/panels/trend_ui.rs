@@ -4,7 +4,8 @@
 use chrono::{DateTime, NaiveDate};
 use eframe::egui;
 use egui_plot::{
-    HLine, Legend, Line, LineStyle, Plot, PlotPoint, PlotPoints, Points, Span, Text, VLine,
+    HLine, HoverPosition, Legend, Line, LineStyle, Plot, PlotPoint, PlotPoints, Points, Span, Text,
+    VLine,
 };
 use spallcast_analysis::indicators::zone_boundaries_mm_s;
 use spallcast_analysis::stage::{db_over, keys};
@@ -172,7 +173,7 @@ impl TrendPanel {
             return;
         };
         let readings: Vec<&ReadingSummary> = history.readings_of(&point).collect();
-        let link = egui::Id::new("trend-x-link");
+        let link = egui::Id::unique("trend-x-link");
         let height = ((ui.available_height() - 8.0) * 0.6).max(140.0);
         let mut summary = TrendFrameSummary::default();
         Plot::new(("trend-db", &history.key))

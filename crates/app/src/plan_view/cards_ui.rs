@@ -42,7 +42,7 @@ pub(super) fn outage_header_ui(ui: &mut egui::Ui, outage: &Outage, editor: &mut 
 
 fn warnings_ui(ui: &mut egui::Ui, warnings: &[SlotWarning]) {
     for w in warnings {
-        ui.label(egui::RichText::new(format!("⚠ {w}")).color(WARNING_TEXT));
+        ui.label(egui::RichText::new(format!("Warning: {w}")).color(WARNING_TEXT));
     }
 }
 
@@ -63,7 +63,7 @@ pub(super) fn task_ui(
         stage_badge_ui(ui, entry.forecast.as_ref().map(|f| f.stage));
         if entry.status == PlanStatus::Planned {
             // A planned bearing can be dragged on to another outage.
-            let id = egui::Id::new(("plan_task", entry.id));
+            let id = egui::Id::unique(("plan_task", entry.id));
             ui.dnd_drag_source(
                 id,
                 PlanDrag {
@@ -113,14 +113,16 @@ pub(super) fn task_ui(
         let id = *id;
         let mut close = false;
         ui.horizontal(|ui| {
-            ui.label("Replaced on");
-            ui.add(egui::TextEdit::singleline(date).desired_width(90.0));
-            ui.label("Found");
+            let label = ui.label("Replaced on");
+            ui.add(egui::TextEdit::singleline(date).desired_width(90.0))
+                .labelled_by(label.id);
+            let label = ui.label("Found");
             ui.add(
                 egui::TextEdit::singleline(found)
                     .desired_width(160.0)
                     .hint_text("e.g. outer race spall"),
-            );
+            )
+            .labelled_by(label.id);
             match date.trim().parse() {
                 Ok(replaced_on) => {
                     if ui.button("Confirm replacement").clicked() {
@@ -169,7 +171,7 @@ fn need_ui(
         ui.set_min_width(ui.available_width());
         ui.horizontal(|ui| {
             stage_badge_ui(ui, Some(need.forecast.stage));
-            let id = egui::Id::new(("plan_need", need.life.life_id));
+            let id = egui::Id::unique(("plan_need", need.life.life_id));
             ui.dnd_drag_source(id, PlanDrag { life_id: need.life.life_id }, |ui| {
                 ui.label(egui::RichText::new(bearing_label(&need.life)).strong());
             })

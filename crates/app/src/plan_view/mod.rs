@@ -189,62 +189,94 @@ impl PlanPanel {
         Ok(())
     }
 
-    /// Draws the calendar, applies the planner's changes to `store` and reloads the board.
+    /// Draws the calendar, applies the planner's changes to `store` and reloads the board (all on the
+    /// calling thread: for tests and tools; the window sends the changes to its data thread instead,
+    /// see [`Self::draw`] and [`apply_changes`]).
     pub fn ui(&mut self, ui: &mut egui::Ui, store: &mut Store) {
-        if let Some(msg) = &self.message {
-            ui.label(egui::RichText::new(msg).strong());
-        }
-        let changes = self.view.ui(ui, &self.board);
+        let changes = self.draw(ui);
         if changes.is_empty() {
             return;
         }
-        let mut lines = Vec::new();
-        for change in &changes {
-            match apply_change(store, change) {
-                Ok(done) => {
-                    lines.push(done);
-                    lines.extend(self.slot_warnings_after(change));
-                }
-                Err(err) => lines.push(format!("Not done: {err}")),
-            }
-        }
-        if let Err(err) = self.reload(store) {
-            lines.push(format!("Could not read the plan again: {err}"));
-        }
-        self.message = Some(lines.join("\n"));
+        let (message, board) =
+            apply_changes(store, self.board.today, self.forecasts.as_ref(), &changes);
+        self.received(message, board);
         ui.ctx().request_repaint();
     }
 
-    /// Warnings, in words, for a bearing just planned into an outage.
-    fn slot_warnings_after(&self, change: &PlanChange) -> Vec<String> {
-        let PlanChange::Assign { life_id, outage_id } = change else {
-            return Vec::new();
-        };
-        let Some(outage) = self.board.outage(*outage_id) else {
-            return Vec::new();
-        };
-        let forecast = self
-            .board
-            .needs
-            .iter()
-            .find(|n| n.life.life_id == *life_id)
-            .cloned()
-            .or_else(|| {
-                let e = self
-                    .board
-                    .entries
-                    .iter()
-                    .find(|e| e.life.life_id == *life_id)?;
-                Some(spallcast_plan::BearingNeed {
-                    life: e.life.clone(),
-                    forecast: e.forecast.clone()?,
-                })
-            });
-        forecast
-            .map(|need| spallcast_plan::slot_warnings(&need, outage, self.board.today))
-            .unwrap_or_default()
-            .iter()
-            .map(|w| format!("Warning: {w}"))
-            .collect()
+    /// Draws the last message and the calendar; returns the changes asked for this frame.
+    pub fn draw(&mut self, ui: &mut egui::Ui) -> Vec<PlanChange> {
+        if let Some(msg) = &self.message {
+            ui.label(egui::RichText::new(msg).strong());
+        }
+        self.view.ui(ui, &self.board)
     }
+
+    /// Takes the outcome of [`apply_changes`]: the message, and the board read again.
+    pub fn received<E: std::fmt::Display>(&mut self, message: String, board: Result<PlanBoard, E>) {
+        match board {
+            Ok(board) => {
+                self.board = board;
+                self.message = Some(message);
+            }
+            Err(err) => {
+                self.message = Some(format!("{message}\nCould not read the plan again: {err}"));
+            }
+        }
+    }
+}
+
+/// Applies the planner's changes to `store`, one small transaction each, and reads the board again.
+/// Returns the message in words (what was done, warnings for the slot chosen, or why not) and the new
+/// board. `forecasts`: as for [`PlanPanel::load_with`]; `None` reads the stored ones.
+pub fn apply_changes(
+    store: &mut Store,
+    today: NaiveDate,
+    forecasts: Option<&BTreeMap<i64, Forecast>>,
+    changes: &[PlanChange],
+) -> (String, spallcast_plan::Result<PlanBoard>) {
+    let mut lines = Vec::new();
+    let mut assigned = Vec::new();
+    for change in changes {
+        match apply_change(store, change) {
+            Ok(done) => {
+                lines.push(done);
+                if let PlanChange::Assign { life_id, outage_id } = change {
+                    assigned.push((*life_id, *outage_id));
+                }
+            }
+            Err(err) => lines.push(format!("Not done: {err}")),
+        }
+    }
+    let board = match forecasts {
+        Some(f) => load_board_with(store, today, f),
+        None => load_board(store, today),
+    };
+    if let Ok(board) = &board {
+        for (life_id, outage_id) in assigned {
+            lines.extend(slot_warnings_after(board, life_id, outage_id));
+        }
+    }
+    (lines.join("\n"), board)
+}
+
+/// Warnings, in words, for a bearing life just planned into an outage (read from the new board).
+fn slot_warnings_after(board: &PlanBoard, life_id: i64, outage_id: i64) -> Vec<String> {
+    let Some(outage) = board.outage(outage_id) else {
+        return Vec::new();
+    };
+    let need = board
+        .entries
+        .iter()
+        .find(|e| e.life.life_id == life_id && e.outage_id == outage_id)
+        .and_then(|e| {
+            Some(spallcast_plan::BearingNeed {
+                life: e.life.clone(),
+                forecast: e.forecast.clone()?,
+            })
+        });
+    need.map(|need| spallcast_plan::slot_warnings(&need, outage, board.today))
+        .unwrap_or_default()
+        .iter()
+        .map(|w| format!("Warning: {w}"))
+        .collect()
 }

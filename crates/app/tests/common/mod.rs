@@ -30,6 +30,8 @@ pub const BPFO_ORDERS: f64 = 3.5848;
 
 /// Route days of the test readings (the bearing was replaced on 2026-02-01).
 pub const DAYS: [&str; 4] = ["2026-01-14", "2026-02-14", "2026-03-14", "2026-04-14"];
+/// The day the window takes as today (the outage plan is drawn from it).
+pub const TODAY: &str = "2026-04-20";
 /// Stage stored for each reading.
 pub const STAGES: [u8; 4] = [3, 0, 1, 2];
 /// Overall velocity stored for each reading, mm/s.
@@ -84,7 +86,46 @@ name = "Lift station"
     id = "TP-P1-NDE-H"
     bearing = "NDE"
     direction = "H"
+
+[[areas]]
+name = "Chlorine store"
+  [[areas.machines]]
+  id = "CL-X1"
+  name = "Extract fan"
+  kind = "fan"
+  nominal_rpm = 1450.0
+  iso_group = 2
+  iso_support = "rigid"
+    [[areas.machines.bearings]]
+    position = "FDE"
+    description = "Fan drive end"
+    bearing_type = "TRB-9"
+    lubrication = "grease"
+    installed = "2025-06-01"
+    [[areas.machines.points]]
+    id = "CL-X1-FDE-H"
+    bearing = "FDE"
+    direction = "H"
+
+[[outages]]
+name = "Lift station May stop"
+start = "2026-05-11"
+end = "2026-05-12"
+areas = ["Lift station"]
+
+[[outages]]
+name = "Chlorine store stop"
+start = "2026-05-20"
+end = "2026-05-20"
+machines = ["CL-X1"]
 "#;
+
+/// Name of the outage that takes the test pump down before its replace-by date.
+pub const LIFT_OUTAGE: &str = "Lift station May stop";
+/// Replace-by and risk-from dates stored with the latest stage call of the test bearing.
+pub const REPLACE_BY: &str = "2026-06-15";
+/// See [`REPLACE_BY`].
+pub const RISK_FROM: &str = "2026-08-01";
 
 /// Scalars the fixture stores, computed from the samples by the analysis crate.
 pub struct FixtureAnalyzer;
@@ -195,7 +236,11 @@ pub fn build_fixture() -> Fixture {
     }
     for (i, id) in de_readings.iter().enumerate() {
         let evidence = if i == 3 {
-            serde_json::json!({ "evidence": [EVIDENCE], "limits": [] })
+            serde_json::json!({
+                "evidence": [EVIDENCE],
+                "limits": [],
+                "forecast": { "replace_by": REPLACE_BY, "risk_from": RISK_FROM },
+            })
         } else {
             serde_json::json!({ "evidence": [format!("stage {} at reading {}", STAGES[i], i + 1)] })
         };
@@ -255,6 +300,7 @@ pub fn harness(db: &Path, cautions_acknowledged: bool) -> Harness<'static, Spall
         start_view: None,
         screenshot: None,
         cautions_acknowledged,
+        today: Some(TODAY.parse().expect("a valid date")),
     };
     Harness::builder()
         .with_size(egui::vec2(1400.0, 900.0))
@@ -274,4 +320,27 @@ pub fn settle(harness: &mut Harness<'static, SpallcastApp>) {
         std::thread::sleep(Duration::from_millis(10));
     }
     panic!("background work did not finish in time");
+}
+
+/// Presses on `from`, moves in steps to `to` and releases there (without the pointer-gone event that
+/// `Harness::drop_at` adds, so the drop zone still sees the pointer when the button comes up). Fixed
+/// frame counts, not `run`: the window keeps background work (and its spinner) going.
+pub fn drag_and_drop<S>(h: &mut Harness<'_, S>, from: egui::Pos2, to: egui::Pos2) {
+    h.hover_at(from);
+    h.run_steps(2);
+    h.drag_at(from);
+    h.run_steps(2);
+    for i in 1..=5 {
+        h.hover_at(from + (to - from) * (i as f32 / 5.0));
+        h.run_steps(2);
+    }
+    h.event(egui::Event::PointerButton {
+        pos: to,
+        button: egui::PointerButton::Primary,
+        pressed: false,
+        modifiers: egui::Modifiers::NONE,
+    });
+    h.run_steps(2);
+    h.remove_cursor();
+    h.run_steps(2);
 }

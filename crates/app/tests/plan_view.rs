@@ -5,10 +5,13 @@
 //! (common practice, no source; REFERENCES §9): `replace_by` ends that window, `risk_from` is when
 //! failure in service becomes likely.
 
+mod common;
+
 use std::collections::BTreeMap;
 use std::path::Path;
 
 use chrono::NaiveDate;
+use common::drag_and_drop;
 use eframe::egui;
 use egui_kittest::kittest::Queryable;
 use egui_kittest::{Harness, HarnessBuilder};
@@ -138,8 +141,9 @@ fn fixture() -> Fixture {
     let mut forecasts = BTreeMap::new();
     // IN-P1: replace by 20 Apr; the last intake outage before then is the spring shutdown.
     forecasts.insert(life_of(&store, "IN-P1"), fc(2, "2027-04-20", "2027-06-01"));
-    // IN-P2: replace by 1 Feb, at risk from 1 Mar: the spring shutdown (8 Mar) is too late.
-    forecasts.insert(life_of(&store, "IN-P2"), fc(3, "2027-02-01", "2027-03-01"));
+    // IN-P2: replace by 5 Jan, at risk from 1 Mar: every intake outage starts after its replace-by
+    // date (the winter stop on 11 Jan is the first), so an unplanned stop is needed.
+    forecasts.insert(life_of(&store, "IN-P2"), fc(3, "2027-01-05", "2027-03-01"));
     let panel = PlanPanel::load_with(&store, d("2026-12-01"), forecasts).unwrap();
     Fixture {
         store,
@@ -152,28 +156,6 @@ fn harness(fx: Fixture) -> Harness<'static, Fixture> {
     HarnessBuilder::default()
         .with_size(egui::vec2(1400.0, 1000.0))
         .build_ui_state(|ui, fx: &mut Fixture| fx.panel.ui(ui, &mut fx.store), fx)
-}
-
-/// Presses on `from`, moves in steps to `to` and releases there (without the pointer-gone event that
-/// `Harness::drop_at` adds, so the drop zone still sees the pointer when the button comes up).
-fn drag_and_drop(h: &mut Harness<'_, Fixture>, from: egui::Pos2, to: egui::Pos2) {
-    h.hover_at(from);
-    h.run();
-    h.drag_at(from);
-    h.run();
-    for i in 1..=5 {
-        h.hover_at(from + (to - from) * (i as f32 / 5.0));
-        h.run();
-    }
-    h.event(egui::Event::PointerButton {
-        pos: to,
-        button: egui::PointerButton::Primary,
-        pressed: false,
-        modifiers: egui::Modifiers::NONE,
-    });
-    h.run();
-    h.remove_cursor();
-    h.run();
 }
 
 fn planned(store: &Store) -> Vec<(i64, i64, PlanStatus)> {
@@ -239,10 +221,11 @@ fn dropping_on_a_late_outage_of_another_area_warns_in_words() {
         msg.contains("at risk of failing in service (from 2027-03-01)"),
         "{msg}"
     );
-    // The same warnings stay beside the planned task.
-    assert!(
-        h.query_by_label_contains("does not take machine IN-P2 down")
-            .is_some()
+    // The same warning stays beside the planned task: in the message and under the task.
+    assert_eq!(
+        h.query_all_by_label_contains("does not take machine IN-P2 down")
+            .count(),
+        2
     );
 }
 
@@ -319,7 +302,7 @@ fn an_outage_added_in_the_form_is_stored() {
         stored.machines,
         vec!["FI-B1".to_owned(), "IN-P2".to_owned()]
     );
-    // It takes IN-P2 down, but starts after IN-P2's replace-by date (1 Feb): not suggested.
+    // It takes IN-P2 down, but starts after IN-P2's replace-by date (5 Jan): not suggested.
     assert!(h.query_by_label("Plan IN-P2 MDE in Blower swap").is_none());
     assert_eq!(
         h.state().panel.view.editor,
