@@ -54,7 +54,7 @@ export LIBGL_ALWAYS_SOFTWARE=1
 unset WAYLAND_DISPLAY
 
 failed=0
-for view in changes spectra trend waveform; do
+for view in changes spectra trend waveform plan; do
     png="$out_dir/$view.png"
     log="$out_dir/$view.log"
     rm -f "$png"

@@ -199,7 +199,7 @@ pub(crate) fn read_capped(path: &Path, limit: u64) -> Result<Vec<u8>, FormatErro
     Ok(bytes)
 }
 
-fn read_head(path: &Path, max: u64) -> Result<Vec<u8>, FormatError> {
+pub(crate) fn read_head(path: &Path, max: u64) -> Result<Vec<u8>, FormatError> {
     use std::io::Read as _;
     let io_err = |source| FormatError::Io {
         path: path.to_owned(),

@@ -71,6 +71,39 @@ pub fn read_wav(path: &Path) -> Result<Recording, FormatError> {
         .map(|_| Vec::with_capacity(per_channel))
         .collect();
 
+    // Fast path: sample containers exactly as wide as the samples (nearly every file): the data chunk is
+    // read in one go and converted, instead of sample by sample through hound.
+    let bits = spec.bits_per_sample;
+    let bulk = matches!(
+        (spec.sample_format, bits),
+        (SampleFormat::Float, 32) | (SampleFormat::Int, 8 | 16 | 24 | 32)
+    ) && container_bytes(&crate::read_head(path, HEAD_BYTES)?) == Some(bits / 8);
+    if bulk {
+        use std::io::Read as _;
+        let byte_count = usize::try_from(claimed * u64::from(bits / 8)).unwrap_or(usize::MAX);
+        let mut data = Vec::with_capacity(byte_count.min(usize::try_from(file_len).unwrap_or(0)));
+        reader
+            .into_inner()
+            .take(byte_count as u64)
+            .read_to_end(&mut data)
+            .map_err(io_err)?;
+        if data.len() != byte_count {
+            return Err(wav_err(
+                path,
+                format!(
+                    "the file ends before the samples its header announces (truncated: {} of {byte_count} \
+                     data bytes)",
+                    data.len()
+                ),
+            ));
+        }
+        decode_interleaved(&data, spec.sample_format, bits, &mut channels);
+        return Ok(Recording {
+            channels,
+            sample_rate_hz: f64::from(spec.sample_rate),
+        });
+    }
+
     match (spec.sample_format, spec.bits_per_sample) {
         (SampleFormat::Float, 32) => {
             for (i, s) in reader.samples::<f32>().enumerate() {
@@ -104,6 +137,54 @@ pub fn read_wav(path: &Path) -> Result<Recording, FormatError> {
         channels,
         sample_rate_hz: f64::from(spec.sample_rate),
     })
+}
+
+/// How much of the file start is searched for the `fmt ` chunk.
+const HEAD_BYTES: u64 = 1 << 16;
+
+/// Bytes per sample container, from the `fmt ` chunk (block align / channels), if it is found in `head`.
+fn container_bytes(head: &[u8]) -> Option<u16> {
+    if head.get(..4)? != b"RIFF" || head.get(8..12)? != b"WAVE" {
+        return None;
+    }
+    let mut at = 12usize;
+    while at.checked_add(8)? <= head.len() {
+        let id = head.get(at..at + 4)?;
+        let size = u32::from_le_bytes(head.get(at + 4..at + 8)?.try_into().ok()?) as usize;
+        let body = at + 8;
+        if id == b"fmt " {
+            let field = |o: usize| -> Option<u16> {
+                Some(u16::from_le_bytes(
+                    head.get(body + o..body + o + 2)?.try_into().ok()?,
+                ))
+            };
+            let channels = field(2)?;
+            let block_align = field(12)?;
+            return (channels > 0 && block_align % channels == 0).then(|| block_align / channels);
+        }
+        // Chunks are padded to an even length.
+        at = body.checked_add(size)?.checked_add(size & 1)?;
+    }
+    None
+}
+
+/// Converts little-endian interleaved samples as [`read_wav`] defines: integers scaled to ±1.0 full
+/// scale (8-bit WAV is unsigned with an offset of 128), floats as stored.
+fn decode_interleaved(data: &[u8], format: SampleFormat, bits: u16, channels: &mut [Vec<f32>]) {
+    let full_scale = f64::from(1u32 << (bits.max(1) - 1));
+    let int = |v: i32| (f64::from(v) / full_scale) as f32;
+    let width = usize::from(bits / 8);
+    for (i, b) in data.chunks_exact(width).enumerate() {
+        let s = match (format, width) {
+            (SampleFormat::Float, 4) => f32::from_le_bytes([b[0], b[1], b[2], b[3]]),
+            (_, 1) => int(i32::from(b[0]) - 128),
+            (_, 2) => int(i32::from(i16::from_le_bytes([b[0], b[1]]))),
+            // Sign-extend the 24-bit value from the top byte.
+            (_, 3) => int(i32::from_le_bytes([0, b[0], b[1], b[2]]) >> 8),
+            _ => int(i32::from_le_bytes([b[0], b[1], b[2], b[3]])),
+        };
+        push(channels, i, s);
+    }
 }
 
 fn push(channels: &mut [Vec<f32>], i: usize, s: f32) {
@@ -155,4 +236,68 @@ pub fn write_wav_f32(path: &Path, rec: &Recording) -> Result<(), FormatError> {
         }
     }
     writer.finalize().map_err(to_err)
+}
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used, reason = "test code")]
+    use super::*;
+
+    /// The bulk decoder against hound's own sample-by-sample reading (the reference), for every
+    /// encoding read in bulk, two channels, full-scale extremes included.
+    #[test]
+    fn bulk_decoding_matches_hound_sample_by_sample() {
+        let dir = tempfile::tempdir().unwrap();
+        let cases: [(SampleFormat, u16); 5] = [
+            (SampleFormat::Int, 8),
+            (SampleFormat::Int, 16),
+            (SampleFormat::Int, 24),
+            (SampleFormat::Int, 32),
+            (SampleFormat::Float, 32),
+        ];
+        for (format, bits) in cases {
+            let path = dir.path().join(format!("{format:?}{bits}.wav"));
+            let spec = WavSpec {
+                channels: 2,
+                sample_rate: 8000,
+                bits_per_sample: bits,
+                sample_format: format,
+            };
+            let mut w = WavWriter::create(&path, spec).unwrap();
+            let max = if bits == 32 {
+                i32::MAX
+            } else {
+                (1i32 << (bits - 1)) - 1
+            };
+            for k in 0..1000_i64 {
+                let x = (k * 7919 % 2001 - 1000) as f64 / 1000.0;
+                match format {
+                    SampleFormat::Float => w.write_sample(x as f32).unwrap(),
+                    SampleFormat::Int => {
+                        let v = match k {
+                            0 => max,
+                            1 => -max - 1,
+                            _ => (x * f64::from(max)) as i32,
+                        };
+                        w.write_sample(v).unwrap();
+                    }
+                }
+            }
+            w.finalize().unwrap();
+            let bulk = read_wav(&path).unwrap();
+            let mut hr = WavReader::open(&path).unwrap();
+            let full = f64::from(1u32 << (bits - 1));
+            let reference: Vec<f32> = match format {
+                SampleFormat::Float => hr.samples::<f32>().map(Result::unwrap).collect(),
+                SampleFormat::Int => hr
+                    .samples::<i32>()
+                    .map(|s| (f64::from(s.unwrap()) / full) as f32)
+                    .collect(),
+            };
+            let interleaved: Vec<f32> = (0..bulk.channels[0].len())
+                .flat_map(|i| [bulk.channels[0][i], bulk.channels[1][i]])
+                .collect();
+            assert_eq!(interleaved, reference, "{format:?} {bits}-bit");
+        }
+    }
 }

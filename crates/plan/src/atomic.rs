@@ -1,6 +1,5 @@
 //! Atomic file writes: a temporary file in the target's folder, then a rename over the target.
 
-use std::io::Write;
 use std::path::Path;
 
 use crate::error::{PlanError, Result};
@@ -14,19 +13,7 @@ pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
         path: path.to_path_buf(),
         source,
     };
-    let dir = match path.parent() {
-        Some(p) if !p.as_os_str().is_empty() => p,
-        _ => Path::new("."),
-    };
-    let mut tmp = tempfile::Builder::new()
-        .prefix(".spallcast-export-")
-        .suffix(".tmp")
-        .tempfile_in(dir)
-        .map_err(err)?;
-    tmp.write_all(bytes).map_err(err)?;
-    tmp.as_file().sync_all().map_err(err)?;
-    tmp.persist(path).map_err(|e| err(e.error))?;
-    Ok(())
+    spallcast_store::write_file_atomic(path, bytes).map_err(err)
 }
 
 #[cfg(test)]

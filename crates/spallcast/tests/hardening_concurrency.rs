@@ -162,16 +162,15 @@ fn an_import_blocked_past_the_busy_timeout_says_the_database_is_busy_and_changes
     );
     let err = String::from_utf8_lossy(&out.stderr);
     assert!(err.contains("busy"), "{err}");
-    // The message does not yet name the database file: see
+    // The message also names the database file: see
     // `a_busy_error_during_an_import_names_the_database` below.
     drop(conn);
     assert!(contents(&db).is_empty());
 }
 
-/// Every error should name the file it is about; an `SQLite` error met after the database was
-/// opened (busy here, disk full in `hardening_database.rs`) does not yet say which database.
+/// Every error names the file it is about, also an `SQLite` error met after the database was opened
+/// (a lock held by another program here).
 #[test]
-#[ignore = "known gap, reported to the store helper: SQLite errors during an import do not name the database"]
 fn a_busy_error_during_an_import_names_the_database() {
     let tmp = tempfile::tempdir().unwrap();
     let route = write_route(tmp.path(), "day-y", 4, 4096, 23, None);

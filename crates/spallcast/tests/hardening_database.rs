@@ -295,7 +295,6 @@ fn a_full_disk_during_an_export_keeps_the_previous_file() {
 /// The store's plant-file export (`PlantFile::write`) on a full disk must not destroy the plant file it
 /// replaces: the analyst's hand-edited file is the only copy of the hierarchy outside the database.
 #[test]
-#[ignore = "known gap, reported to the store helper: PlantFile::write truncates the old file before writing"]
 fn a_full_disk_during_a_plant_file_export_keeps_the_previous_file() {
     let tmp = tempfile::tempdir().unwrap();
     let mount = match Tmpfs::mount(&tmp.path().join("plantfs"), "64k") {

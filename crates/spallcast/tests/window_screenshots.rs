@@ -65,7 +65,7 @@ fn window_screenshots_of_every_main_view() {
         run.status.success(),
         "screenshot script failed:\n{stdout}\n{stderr}"
     );
-    for view in ["changes", "spectra", "trend", "waveform"] {
+    for view in ["changes", "spectra", "trend", "waveform", "plan"] {
         let png = out_dir.join(format!("{view}.png"));
         let bytes = std::fs::read(&png).unwrap();
         // PNG signature (ISO/IEC 15948, section 5.2).

@@ -79,6 +79,14 @@ pub enum StoreError {
         /// The I/O error.
         source: std::io::Error,
     },
+    /// An `SQLite` error met while working on a named database (see [`crate::Store::named`]).
+    #[error("{}: {}", path.display(), sqlite_message(source))]
+    Database {
+        /// The database file.
+        path: PathBuf,
+        /// The `SQLite` error.
+        source: rusqlite::Error,
+    },
     /// Any other `SQLite` error (a lock timeout reads "the database is busy ...").
     #[error("{}", sqlite_message(.0))]
     Sqlite(#[from] rusqlite::Error),

@@ -464,6 +464,16 @@ impl Store {
         analyzer: &dyn ReadingAnalyzer,
         progress: &mut dyn FnMut(usize, usize),
     ) -> Result<ImportSummary> {
+        self.import_route_unnamed(dir, analyzer, progress)
+            .map_err(|e| self.named(e))
+    }
+
+    fn import_route_unnamed(
+        &mut self,
+        dir: &Path,
+        analyzer: &dyn ReadingAnalyzer,
+        progress: &mut dyn FnMut(usize, usize),
+    ) -> Result<ImportSummary> {
         if !dir.is_dir() {
             return Err(StoreError::Route {
                 path: dir.to_path_buf(),

@@ -105,3 +105,21 @@ pub(crate) fn local_time(
     })?;
     Ok(parse_utc(utc)?.with_timezone(&offset))
 }
+
+/// Writes `bytes` to `path` atomically: into a temporary file in the same folder, synced to disk, then
+/// renamed over `path`. On any failure the temporary file is removed and `path` is untouched.
+pub fn write_file_atomic(path: &std::path::Path, bytes: &[u8]) -> std::io::Result<()> {
+    use std::io::Write as _;
+    let dir = match path.parent() {
+        Some(p) if !p.as_os_str().is_empty() => p,
+        _ => std::path::Path::new("."),
+    };
+    let mut tmp = tempfile::Builder::new()
+        .prefix(".spallcast-")
+        .suffix(".tmp")
+        .tempfile_in(dir)?;
+    tmp.write_all(bytes)?;
+    tmp.as_file().sync_all()?;
+    tmp.persist(path).map_err(|e| e.error)?;
+    Ok(())
+}

@@ -293,10 +293,11 @@ impl PlantFile {
             .map_err(|e| StoreError::Plant(format!("cannot write the plant file: {e}")))
     }
 
-    /// Writes the plant file.
+    /// Writes the plant file atomically: a temporary file beside it, synced, then renamed over it, so a
+    /// full disk or a crash leaves the previous file whole (it is the analyst's hand-edited copy).
     pub fn write(&self, path: &Path) -> Result<()> {
         let text = self.to_toml()?;
-        std::fs::write(path, text).map_err(|source| StoreError::Io {
+        crate::write_file_atomic(path, text.as_bytes()).map_err(|source| StoreError::Io {
             path: path.to_path_buf(),
             source,
         })

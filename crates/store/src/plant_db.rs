@@ -59,6 +59,10 @@ impl Store {
     /// are kept (readings refer to them); a changed current `installed` date of a bearing position starts a
     /// new life and closes the previous open one on that date.
     pub fn apply_plant(&mut self, plant: &PlantFile) -> Result<ApplySummary> {
+        self.apply_plant_unnamed(plant).map_err(|e| self.named(e))
+    }
+
+    fn apply_plant_unnamed(&mut self, plant: &PlantFile) -> Result<ApplySummary> {
         plant.check().map_err(StoreError::Plant)?;
         let tx = self
             .conn

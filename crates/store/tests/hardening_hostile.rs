@@ -680,3 +680,21 @@ fn a_file_that_is_not_sqlite_is_refused_and_left_untouched() {
         assert_eq!(std::fs::read(&path).unwrap(), bytes, "{name} was modified");
     }
 }
+
+/// A recording larger than any reader accepts (1 GiB) is refused while it is hashed, a buffer at a
+/// time, before anything is decoded; the good reading beside it still imports. The file is sparse, so
+/// the test costs reading 1 GiB of zeros from the page cache, not disk space.
+#[test]
+fn a_recording_larger_than_the_cap_is_refused_while_hashing() {
+    let mut f = fixture();
+    let huge = std::fs::File::create(f.route.join("huge.wav")).unwrap();
+    huge.set_len(spallcast_formats::MAX_FILE_BYTES + 1).unwrap();
+    drop(huge);
+    write_wav_f32(&f.route.join("good.wav"), &sine(4096, 25_600.0, 0.5)).unwrap();
+    write_manifest(&f.route, &[row("huge.wav", "P1"), row("good.wav", "P2")]);
+    let s = import(&mut f);
+    assert_eq!(s.new_readings, 1, "{s:#?}");
+    let why = reason(&s, "huge.wav");
+    assert!(why.contains("larger than 1024 MiB"), "{why}");
+    assert_sound(&f.store);
+}
