@@ -56,6 +56,10 @@ pub struct StatusMessage {
 }
 
 /// The Spallcast window.
+#[allow(
+    clippy::struct_excessive_bools,
+    reason = "independent in-flight flags of separate background requests, not a state machine"
+)]
 pub struct SpallcastApp {
     /// Choices saved between runs.
     pub state: PersistedState,
@@ -443,7 +447,7 @@ impl SpallcastApp {
                 match result {
                     Ok(history) => self.history = Some(history),
                     Err(e) => {
-                        self.set_status(format!("could not load {}: {e}", key.display()), true)
+                        self.set_status(format!("could not load {}: {e}", key.display()), true);
                     }
                 }
             }

@@ -143,7 +143,7 @@ impl SpallcastApp {
         match view {
             View::Changes => {
                 self.changes
-                    .ui(ui, self.attention.as_ref(), self.plant.as_ref(), actions)
+                    .ui(ui, self.attention.as_ref(), self.plant.as_ref(), actions);
             }
             View::OutagePlan => match &mut self.plan {
                 Some(panel) => {
@@ -174,7 +174,7 @@ impl SpallcastApp {
                 match view {
                     View::Spectra => {
                         self.spectra
-                            .ui(ui, &mut self.state.spectra, history, &self.cache, actions)
+                            .ui(ui, &mut self.state.spectra, history, &self.cache, actions);
                     }
                     View::Trend => self.trend.ui(ui, &mut self.state.trend_indicators, history),
                     _ => self.waveform.ui(ui, history, &self.cache, actions),

@@ -36,7 +36,9 @@ pub fn decimate_minmax(
         return;
     }
     let (lo, hi) = (x_range.0.min(x_range.1), x_range.0.max(x_range.1));
-    if len == 0 || !(series.dx > 0.0) || columns == 0 {
+    // NaN counts as not positive.
+    if len == 0 || series.dx.partial_cmp(&0.0) != Some(std::cmp::Ordering::Greater) || columns == 0
+    {
         return;
     }
     let last = len - 1;

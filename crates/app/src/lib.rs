@@ -1,4 +1,4 @@
-//! The Spallcast workstation window (eframe with the glow backend, egui_plot).
+//! The Spallcast workstation window (eframe with the glow backend, `egui_plot`).
 //!
 //! Views are thin: they read view-model types ([`model`]) and push [`actions::Action`]s; the app applies
 //! the actions after layout. Everything slow (opening the database, loading a bearing, computing spectra,

@@ -117,7 +117,7 @@ pub fn save_png(image: &egui::ColorImage, path: &Path) -> anyhow::Result<()> {
     let bytes: Vec<u8> = image
         .pixels
         .iter()
-        .flat_map(|c| c.to_srgba_unmultiplied())
+        .flat_map(eframe::egui::Color32::to_srgba_unmultiplied)
         .collect();
     writer
         .write_image_data(&bytes)

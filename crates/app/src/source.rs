@@ -1,7 +1,7 @@
 //! The data-access seam: what the window needs from the store and the analysis crate.
 //!
 //! Worker threads call a [`Backend`]; the panels never do. [`crate::store_backend::StoreBackend`] is the
-//! real one (SQLite store, analysis crate); tests and benches may supply their own.
+//! real one (`SQLite` store, analysis crate); tests and benches may supply their own.
 
 use std::path::Path;
 

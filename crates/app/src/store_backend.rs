@@ -1,4 +1,4 @@
-//! The real [`Backend`]: the SQLite store for data, the analysis crate for spectra.
+//! The real [`Backend`]: the `SQLite` store for data, the analysis crate for spectra.
 
 use std::collections::{BTreeMap, HashMap};
 use std::path::Path;
@@ -56,7 +56,7 @@ pub fn store_import(
 ) -> anyhow::Result<ImportSummary> {
     let mut store = Store::open(db)?;
     let summary = store.import_route(folder, analyzer, &mut |done, total| {
-        progress(ImportProgress { done, total })
+        progress(ImportProgress { done, total });
     })?;
     Ok(summary_view(&summary))
 }
@@ -121,12 +121,17 @@ pub fn compute_spectra(
         &samples,
         fs,
         shaft_hz,
-        Default::default(),
+        spallcast_analysis::AccelUnit::default(),
     )
     .with_context(|| format!("acceleration spectrum of reading {id}"))?;
-    let velocity =
-        spallcast_analysis::velocity_spectrum(engine, &samples, fs, shaft_hz, Default::default())
-            .with_context(|| format!("velocity spectrum of reading {id}"))?;
+    let velocity = spallcast_analysis::velocity_spectrum(
+        engine,
+        &samples,
+        fs,
+        shaft_hz,
+        spallcast_analysis::VelocityUnit::default(),
+    )
+    .with_context(|| format!("velocity spectrum of reading {id}"))?;
     // Without fault factors the kurtogram has no defect rate to size its band by: use a wide fixed band
     // in the upper part of the recording instead.
     let (freqs, band) = match waveform.factors {

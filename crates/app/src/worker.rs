@@ -5,7 +5,7 @@
 
 use std::path::{Path, PathBuf};
 use std::sync::Arc;
-use std::sync::mpsc::{self, Receiver, Sender, TryRecvError};
+use std::sync::mpsc::{self, Receiver, Sender};
 use std::thread::JoinHandle;
 use std::time::{Duration, Instant};
 
@@ -186,11 +186,9 @@ fn handle(backend: &dyn Backend, source: &mut dyn PlantSource, request: Request)
 fn drain(replies: &Receiver<Reply>, budget: Duration) -> Vec<Reply> {
     let started = Instant::now();
     let mut out = Vec::new();
-    loop {
-        match replies.try_recv() {
-            Ok(reply) => out.push(reply),
-            Err(TryRecvError::Empty | TryRecvError::Disconnected) => break,
-        }
+    // Empty or disconnected: nothing more this frame.
+    while let Ok(reply) = replies.try_recv() {
+        out.push(reply);
         if started.elapsed() > budget {
             break;
         }

@@ -1,5 +1,11 @@
 //! The window's data layer (store backend) against a real store database, without a window.
 
+#![allow(
+    clippy::unwrap_used,
+    clippy::expect_used,
+    reason = "test code: a broken fixture should fail loudly"
+)]
+
 mod common;
 
 use std::sync::Arc;
@@ -72,7 +78,11 @@ fn store_backend_imports_a_route_folder_idempotently() {
     let backend = StoreBackend::with_analyzer(Arc::new(FixtureAnalyzer));
     let folder = fx.dir.path().join("route");
     std::fs::create_dir_all(&folder).unwrap();
-    let text: String = synth(0.3, 77).iter().map(|v| format!("{v}\n")).collect();
+    let text: String = synth(0.3, 77).iter().fold(String::new(), |mut t, v| {
+        t.push_str(&v.to_string());
+        t.push('\n');
+        t
+    });
     std::fs::write(folder.join("de.csv"), text).unwrap();
     std::fs::write(
         folder.join("route.csv"),

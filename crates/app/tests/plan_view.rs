@@ -1,9 +1,15 @@
-//! The outage-plan calendar driven in an egui_kittest harness over a temporary database: drag a bearing
+//! The outage-plan calendar driven in an `egui_kittest` harness over a temporary database: drag a bearing
 //! onto an outage, accept a suggestion, mark a replacement done, add an outage; each checked in the store.
 //!
 //! The forecast dates are crafted. They stand for the trade rule "replace between stage 2 and stage 3"
 //! (common practice, no source; REFERENCES §9): `replace_by` ends that window, `risk_from` is when
 //! failure in service becomes likely.
+
+#![allow(
+    clippy::unwrap_used,
+    clippy::expect_used,
+    reason = "test code: a broken fixture should fail loudly"
+)]
 
 mod common;
 

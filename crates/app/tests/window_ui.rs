@@ -1,4 +1,10 @@
-//! egui_kittest tests that drive the real app state on a small database built through the store API.
+//! `egui_kittest` tests that drive the real app state on a small database built through the store API.
+
+#![allow(
+    clippy::unwrap_used,
+    clippy::expect_used,
+    reason = "test code: a broken fixture should fail loudly"
+)]
 
 mod common;
 
@@ -96,6 +102,13 @@ fn select_bearing_add_month_and_toggle_fault_markers() {
     assert_eq!(panel.selected, vec![ids[1], ids[2], ids[3]]);
     assert_eq!(panel.summary.drawn, vec![ids[1], ids[2], ids[3]]);
     assert!(panel.summary.plotted_points > 0);
+    // The plot spans the whole spectrum once it has arrived (from 0 Hz to at most Nyquist).
+    let (x0, x1) = panel.summary.x_range;
+    assert_eq!(x0, 0.0);
+    assert!(
+        x1 > 0.35 * common::FS_HZ && x1 <= 0.5 * common::FS_HZ,
+        "x range {x0}..{x1} Hz"
+    );
     // At most two points per screen column per curve (the plot is narrower than the 1400 px window).
     assert!(
         panel.summary.plotted_points <= 3 * (2 * 1400 + 4),
@@ -245,7 +258,11 @@ fn import_route_folder_in_background_then_show_summary() {
     let folder = fx.dir.path().join("route-2026-05");
     std::fs::create_dir_all(&folder).unwrap();
     let samples = common::synth(0.3, 77);
-    let text: String = samples.iter().map(|v| format!("{v}\n")).collect();
+    let text: String = samples.iter().fold(String::new(), |mut t, v| {
+        t.push_str(&v.to_string());
+        t.push('\n');
+        t
+    });
     std::fs::write(folder.join("de.csv"), text).unwrap();
     std::fs::write(
         folder.join("route.csv"),

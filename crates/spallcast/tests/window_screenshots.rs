@@ -1,6 +1,12 @@
 //! Opens the real window under Xvfb (Mesa software OpenGL) on the demo plant and saves a screenshot of
-//! each main view, through tests/window_screenshots.sh. Skipped with a message where Xvfb is not
+//! each main view, through `tests/window_screenshots.sh`. Skipped with a message where Xvfb is not
 //! installed, unless CI=true (then it fails).
+
+#![allow(
+    clippy::unwrap_used,
+    clippy::expect_used,
+    reason = "test code: a broken fixture should fail loudly"
+)]
 
 use std::path::{Path, PathBuf};
 use std::process::Command;

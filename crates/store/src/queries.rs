@@ -127,8 +127,6 @@ pub struct BearingState {
     pub last_reading_id: Option<i64>,
     /// When it was taken.
     pub last_reading_at: Option<DateTime<FixedOffset>>,
-    /// Scalars of the latest reading.
-    pub latest_scalars: BTreeMap<String, f64>,
     /// The latest stage call on any reading of the position.
     pub latest_stage: Option<StageCall>,
 }
@@ -443,27 +441,15 @@ impl Store {
     /// Latest state of every bearing position: current life, last reading and its scalars, latest
     /// stage call. Ordered as the plant tree.
     ///
-    /// Three set-based statements whatever the plant's size (positions with their latest reading and
-    /// call found through indexes; the scalars of all latest readings; the latest calls), not a query
-    /// per bearing.
+    /// Two set-based statements whatever the plant's size (positions with their latest reading and
+    /// call found through indexes; the latest calls), not a query per bearing. A reading's scalars are
+    /// read with [`Store::scalars`] when wanted: at ~60 per reading they were most of the cost.
     pub fn latest_states(&self) -> Result<Vec<BearingState>> {
         const LAST_READING: &str = "(SELECT r.id FROM reading r WHERE r.position_id = bp.id
                                      ORDER BY r.taken_at_utc DESC, r.id DESC LIMIT 1)";
         const LAST_CALL: &str = "(SELECT s.reading_id FROM stage_call s WHERE s.position_id = bp.id
                                   ORDER BY s.taken_at_utc DESC, s.reading_id DESC LIMIT 1)";
         let c = &self.conn;
-        let mut scalars: HashMap<i64, BTreeMap<String, f64>> = HashMap::new();
-        let mut stmt = c.prepare(&format!(
-            "SELECT s.reading_id, s.name, s.value FROM reading_scalar s
-             WHERE s.reading_id IN (SELECT {LAST_READING} FROM bearing_position bp)"
-        ))?;
-        let mut rows = stmt.query([])?;
-        while let Some(r) = rows.next()? {
-            scalars
-                .entry(r.get(0)?)
-                .or_default()
-                .insert(r.get(1)?, r.get(2)?);
-        }
         let mut calls: HashMap<i64, StageCall> = HashMap::new();
         let mut stmt = c.prepare(&format!(
             "SELECT reading_id, stage, version, evidence, called_at FROM stage_call
@@ -506,9 +492,6 @@ impl Store {
                 (Some(utc), Some(off)) => Some(crate::local_time(&utc, off)?),
                 _ => None,
             };
-            let latest_scalars = last_reading_id
-                .and_then(|id| scalars.remove(&id))
-                .unwrap_or_default();
             let latest_stage = r
                 .get::<_, Option<i64>>(14)?
                 .and_then(|id| calls.remove(&id));
@@ -523,7 +506,6 @@ impl Store {
                 life,
                 last_reading_id,
                 last_reading_at,
-                latest_scalars,
                 latest_stage,
             });
         }
@@ -561,6 +543,15 @@ impl Store {
                 })
             })
             .collect()
+    }
+
+    /// The scalars (indicators) stored for one reading, by name.
+    pub fn scalars(&self, reading_id: i64) -> Result<BTreeMap<String, f64>> {
+        let mut stmt = self
+            .conn
+            .prepare_cached("SELECT name, value FROM reading_scalar WHERE reading_id = ?1")?;
+        let rows = stmt.query_map([reading_id], |r| Ok((r.get(0)?, r.get(1)?)))?;
+        Ok(rows.collect::<Result<BTreeMap<_, _>, _>>()?)
     }
 
     /// Names of all scalars stored (for trend pickers), sorted.

@@ -431,7 +431,8 @@ fn changed_findings_are_reported_and_trends_follow_the_life() {
         states[0].last_reading_at.unwrap().to_rfc3339(),
         "2026-06-11T09:00:00+01:00"
     );
-    assert!((states[0].latest_scalars["accel_rms_g"] - trend[1].value).abs() < 1e-12);
+    let last = store.scalars(states[0].last_reading_id.unwrap()).unwrap();
+    assert!((last["accel_rms_g"] - trend[1].value).abs() < 1e-12);
     assert_eq!(states[0].life.as_ref().unwrap().id, life);
     assert!(states[0].latest_stage.is_none());
     store

@@ -32,6 +32,8 @@ pub struct SpectraFrameSummary {
     pub markers: Vec<(String, f64)>,
     /// Plot points drawn in total (after decimation).
     pub plotted_points: usize,
+    /// The x range (in the axis unit) the curves were drawn over.
+    pub x_range: (f64, f64),
 }
 
 /// Cursor readout under the plot.
@@ -60,6 +62,9 @@ pub struct SpectraPanel {
     pub summary: SpectraFrameSummary,
     /// Cursor readout of the last frame.
     pub cursor: Option<CursorReadout>,
+    /// The full x span the plot was last fitted to; when the spectra's span differs (they arrived, or
+    /// another kind or axis was chosen) the plot is fitted again.
+    fitted_x_span: Option<f64>,
 }
 
 /// The default months of a point: the latest reading, the one before it, and the baseline (first
@@ -236,6 +241,7 @@ impl SpectraPanel {
         let count = curves.len();
         let mut plotted = 0;
         let mut data_top = f64::MIN;
+        let mut x_range = (0.0, 0.0);
         let plot = Plot::new(("spectra-plot", kind, axis, scale, settings.layout))
             .height(height)
             .legend(Legend::default())
@@ -255,14 +261,21 @@ impl SpectraPanel {
             .iter()
             .map(|m| (axis.from_hz(m.freq_hz, ref_shaft_hz), m))
             .collect();
+        // The plot keeps its bounds between frames: fit it to the whole span when the spectra arrive
+        // (the first frames have none) or their span changes; zoom and pan are kept otherwise.
+        let refit = max_x > 0.0 && self.fitted_x_span != Some(max_x);
         let response = plot.show(ui, |pui| {
             let bounds = pui.plot_bounds();
             let (x0, x1) = (bounds.min()[0], bounds.max()[0]);
-            let range = if x0.is_finite() && x1.is_finite() && x1 > x0 {
+            let range = if refit {
+                pui.set_plot_bounds_x(0.0..=max_x);
+                (0.0, max_x)
+            } else if x0.is_finite() && x1.is_finite() && x1 > x0 {
                 (x0, x1)
             } else {
                 (0.0, max_x)
             };
+            x_range = range;
             let columns = pui.transform().frame().width().max(16.0) as usize;
             for (i, (reading, spectra)) in curves.iter().enumerate() {
                 let spectrum = spectra.get(kind);
@@ -275,7 +288,13 @@ impl SpectraPanel {
                 let mut buf = Vec::with_capacity(2 * columns + 4);
                 match scale {
                     AmplitudeScale::Linear => {
-                        decimate_minmax(series, range, columns, |v| f64::from(v) + offset, &mut buf)
+                        decimate_minmax(
+                            series,
+                            range,
+                            columns,
+                            |v| f64::from(v) + offset,
+                            &mut buf,
+                        );
                     }
                     AmplitudeScale::Log => {
                         decimate_minmax(
@@ -328,6 +347,10 @@ impl SpectraPanel {
             .map(|m| (m.label.clone(), m.freq_hz))
             .collect();
         self.summary.plotted_points = plotted;
+        self.summary.x_range = x_range;
+        if refit {
+            self.fitted_x_span = Some(max_x);
+        }
         self.cursor = response.inner.and_then(|p| {
             let (_, spectra) = newest?;
             let freq_hz = axis.to_hz(p.x, ref_shaft_hz);

@@ -80,22 +80,20 @@ fn date_label(x: f64) -> String {
 }
 
 /// Hover text: the series name, the date and the value.
-fn hover_label(hover: &HoverPosition<'_>, unit: &str) -> Option<String> {
+fn hover_label(hover: &HoverPosition<'_>, unit: &str) -> String {
     match hover {
         HoverPosition::NearDataPoint {
             plot_name,
             position,
             ..
-        } => Some(format!(
+        } => format!(
             "{plot_name}\n{}  {:.2} {unit}",
             date_label(position.x),
             position.y
-        )),
-        HoverPosition::Elsewhere { position } => Some(format!(
-            "{}  {:.2} {unit}",
-            date_label(position.x),
-            position.y
-        )),
+        ),
+        HoverPosition::Elsewhere { position } => {
+            format!("{}  {:.2} {unit}", date_label(position.x), position.y)
+        }
     }
 }
 
@@ -182,7 +180,7 @@ impl TrendPanel {
             .link_axis(link, egui::Vec2b::new(true, false))
             .x_axis_formatter(|m, _| date_label(m.value))
             .y_axis_label("dB over the life's first reading")
-            .label_formatter(|hover| hover_label(hover, "dB"))
+            .label_formatter(|hover| Some(hover_label(hover, "dB")))
             .show(ui, |pui| {
                 let mut top = 0.0_f64;
                 for (i, (key, label)) in present
@@ -274,7 +272,7 @@ fn velocity_ui(
         .x_axis_formatter(|m, _| date_label(m.value))
         .y_axis_label("velocity RMS, mm/s")
         .include_y(0.0)
-        .label_formatter(|hover| hover_label(hover, "mm/s"))
+        .label_formatter(|hover| Some(hover_label(hover, "mm/s")))
         .show(ui, |pui| {
             pui.points(
                 Points::new("", PlotPoints::new(series.clone()))
