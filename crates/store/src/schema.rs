@@ -385,7 +385,10 @@ fn classify(err: rusqlite::Error, path: &Path) -> StoreError {
             path: path.to_path_buf(),
         }
     } else {
-        StoreError::Sqlite(err)
+        StoreError::Database {
+            path: path.to_path_buf(),
+            source: err,
+        }
     }
 }
 
