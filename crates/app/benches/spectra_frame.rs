@@ -205,4 +205,44 @@ fn report(name: &str, runs: usize, mut f: impl FnMut()) {
 fn main() {
     bench_frame();
     bench_compute();
+    bench_open_bearing();
+}
+
+/// Opening a bearing on the demo plant: the data thread's work before the views can draw it (its
+/// history, stage call and forecast from the database), then the spectra of the three default months.
+fn bench_open_bearing() {
+    use spallcast_app::source::Backend as _;
+    let tmp = tempfile::tempdir().unwrap();
+    let db = tmp.path().join("demo.sqlite");
+    spallcast_pipeline::create_demo_database(&db, &mut |_, _, _| {}).unwrap();
+    let backend = spallcast_app::default_backend();
+    let mut source = backend.open(&db).unwrap();
+    let plant = source.plant().unwrap();
+    let keys: Vec<BearingKey> = plant.bearings().map(|b| b.key.clone()).collect();
+    let mut history_ms = Vec::new();
+    let mut total_ms = Vec::new();
+    for key in &keys {
+        let started = Instant::now();
+        let history = black_box(source.bearing(key).unwrap());
+        history_ms.push(started.elapsed().as_secs_f64() * 1e3);
+        let Some(point) = history.readings.last().map(|r| r.point.clone()) else {
+            continue;
+        };
+        for id in spallcast_app::panels::spectra_ui::default_selection(&history, &point) {
+            let waveform = source.waveform(id).unwrap();
+            black_box(backend.spectra(&waveform).unwrap());
+        }
+        total_ms.push(started.elapsed().as_secs_f64() * 1e3);
+    }
+    let stats = |v: &mut Vec<f64>| {
+        v.sort_by(f64::total_cmp);
+        (v[v.len() / 2], v[v.len() - 1])
+    };
+    let (h_med, h_max) = stats(&mut history_ms);
+    let (t_med, t_max) = stats(&mut total_ms);
+    println!(
+        "open a bearing on the demo plant ({} bearings): history {h_med:.1} ms median, {h_max:.1} ms slowest; \
+         with the spectra of its three default months {t_med:.1} ms median, {t_max:.1} ms slowest",
+        keys.len()
+    );
 }

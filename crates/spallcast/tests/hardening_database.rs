@@ -232,7 +232,10 @@ fn a_disk_that_fills_during_an_import_leaves_complete_readings_and_the_rerun_com
         err.contains("full"),
         "the message does not say the disk is full: {err}"
     );
-    assert!(err.contains("plant.db"), "the message does not name the database: {err}");
+    assert!(
+        err.contains("plant.db"),
+        "the message does not name the database: {err}"
+    );
 
     // What was written is sound and complete, reading by reading. Reading it needs a little room (SQLite
     // creates its shared-memory index beside a WAL database on opening), as an analyst would free some.
