@@ -12,100 +12,20 @@
 )]
 
 mod common;
+// The planner crate's invented plant (two intake pumps, one blower, three outages).
+#[path = "../../plan/tests/common/mod.rs"]
+mod plan_fixture;
 
 use std::collections::BTreeMap;
-use std::path::Path;
 
-use chrono::NaiveDate;
 use common::drag_and_drop;
 use eframe::egui;
 use egui_kittest::kittest::Queryable;
 use egui_kittest::{Harness, HarnessBuilder};
 use spallcast_app::plan_view::{PlanPanel, PlanView};
 use spallcast_plan::Forecast;
-use spallcast_store::{PlanStatus, PlantFile, Store};
-
-/// An invented plant: two intake pumps, one blower, three outages.
-const PLANT: &str = r#"
-[site]
-name = "Tallow Creek Water Works"
-timezone_offset = "+01:00"
-
-[[bearing_types]]
-designation = "TCX-209"
-kind = "deep-groove ball"
-rolling_elements = 9
-element_diameter_mm = 12.7
-pitch_diameter_mm = 65.0
-contact_angle_deg = 0.0
-
-[[areas]]
-name = "Intake"
-  [[areas.machines]]
-  id = "IN-P1"
-  name = "Intake pump 1"
-  kind = "pump"
-  nominal_rpm = 1480.0
-  iso_group = 2
-  iso_support = "rigid"
-    [[areas.machines.bearings]]
-    position = "MNDE"
-    description = "Motor non-drive end"
-    bearing_type = "TCX-209"
-    lubrication = "grease"
-    installed = "2024-02-12"
-  [[areas.machines]]
-  id = "IN-P2"
-  name = "Intake pump 2"
-  kind = "pump"
-  nominal_rpm = 1480.0
-  iso_group = 2
-  iso_support = "rigid"
-    [[areas.machines.bearings]]
-    position = "MDE"
-    description = "Motor drive end"
-    bearing_type = "TCX-209"
-    lubrication = "oil"
-    installed = "2023-06-01"
-
-[[areas]]
-name = "Filters"
-  [[areas.machines]]
-  id = "FI-B1"
-  name = "Backwash blower"
-  kind = "fan"
-  nominal_rpm = 2960.0
-  iso_group = 2
-  iso_support = "flexible"
-    [[areas.machines.bearings]]
-    position = "FDE"
-    description = "Fan drive end"
-    bearing_type = "TCX-209"
-    lubrication = "grease"
-    installed = "2025-01-20"
-
-[[outages]]
-name = "Winter intake stop"
-start = "2027-01-11"
-end = "2027-01-13"
-areas = ["Intake"]
-
-[[outages]]
-name = "Spring intake shutdown"
-start = "2027-03-08"
-end = "2027-03-12"
-areas = ["Intake"]
-
-[[outages]]
-name = "Filter hall stop"
-start = "2027-04-05"
-end = "2027-04-06"
-areas = ["Filters"]
-"#;
-
-fn d(s: &str) -> NaiveDate {
-    s.parse().unwrap()
-}
+use plan_fixture::d;
+use spallcast_store::{PlanStatus, Store};
 
 struct Fixture {
     store: Store,
@@ -134,10 +54,7 @@ fn outage_id(store: &Store, name: &str) -> i64 {
 
 fn fixture() -> Fixture {
     let dir = tempfile::tempdir().unwrap();
-    let mut store = Store::open(&dir.path().join("plant.db")).unwrap();
-    store
-        .apply_plant(&PlantFile::parse(PLANT, Path::new("plant.toml")).unwrap())
-        .unwrap();
+    let store = plan_fixture::plant_store(&dir.path().join("plant.db"));
     let fc = |stage, rb: &str, rf: &str| Forecast {
         stage,
         evidence: "outer-race tones with harmonics".into(),
