@@ -142,8 +142,13 @@ impl SpallcastApp {
     fn view_ui(&mut self, ui: &mut egui::Ui, view: View, actions: &mut Vec<Action>) {
         match view {
             View::Changes => {
-                self.changes
-                    .ui(ui, self.attention.as_ref(), self.plant.as_ref(), actions);
+                self.changes.ui(
+                    ui,
+                    self.attention.as_ref(),
+                    self.plant.as_ref(),
+                    self.today,
+                    actions,
+                );
             }
             View::OutagePlan => match &mut self.plan {
                 Some(panel) => {

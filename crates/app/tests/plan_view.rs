@@ -22,9 +22,9 @@ use common::drag_and_drop;
 use eframe::egui;
 use egui_kittest::kittest::Queryable;
 use egui_kittest::{Harness, HarnessBuilder};
+use plan_fixture::d;
 use spallcast_app::plan_view::{PlanPanel, PlanView};
 use spallcast_plan::Forecast;
-use plan_fixture::d;
 use spallcast_store::{PlanStatus, Store};
 
 struct Fixture {

@@ -10,7 +10,7 @@ mod common;
 
 use common::{
     BEARING_LABEL, BPFO_ORDERS, DAYS, EVIDENCE, LIFT_OUTAGE, REPLACE_BY, RISK_FROM, RPM, STAGES,
-    build_fixture, drag_and_drop, harness, settle,
+    build_fixture, drag_and_drop, harness, harness_on, settle,
 };
 use egui_kittest::kittest::Queryable;
 use spallcast_app::model::BearingKey;
@@ -411,4 +411,23 @@ fn changes_made_by_another_program_show_up_without_reopening() {
         Some(1),
         "the badge follows the database"
     );
+}
+
+#[test]
+fn due_dates_in_the_past_are_marked_overdue() {
+    let fx = build_fixture();
+    let mut h = harness(&fx.db, true);
+    settle(&mut h);
+    let due = format!("replace by {REPLACE_BY}");
+    assert!(
+        h.query_by_label(&due).is_some(),
+        "not yet due on {}",
+        common::TODAY
+    );
+    drop(h);
+    // The same database seen a day after the replace-by date.
+    let mut h = harness_on(&fx.db, true, "2026-06-16");
+    settle(&mut h);
+    assert!(h.query_by_label(&due).is_none());
+    assert!(h.query_by_label(&format!("overdue: {due}")).is_some());
 }

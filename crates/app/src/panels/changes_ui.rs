@@ -23,6 +23,7 @@ impl ChangesPanel {
         ui: &mut egui::Ui,
         attention: Option<&Attention>,
         plant: Option<&PlantTree>,
+        today: chrono::NaiveDate,
         actions: &mut Vec<Action>,
     ) {
         let Some(att) = attention else {
@@ -81,7 +82,17 @@ impl ChangesPanel {
                                 actions.push(Action::OpenBearingView(d.key.clone(), View::Trend));
                             }
                             ui.label(description(plant, &d.key));
-                            ui.label(format!("replace by {}", d.replace_by));
+                            if d.replace_by < today {
+                                ui.label(
+                                    egui::RichText::new(format!(
+                                        "overdue: replace by {}",
+                                        d.replace_by
+                                    ))
+                                    .color(crate::plan_view::WARNING_TEXT),
+                                );
+                            } else {
+                                ui.label(format!("replace by {}", d.replace_by));
+                            }
                             ui.end_row();
                         }
                     });

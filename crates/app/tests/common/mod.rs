@@ -294,13 +294,22 @@ fn add(
 
 /// The window on `db`, 1400×900, with the store backend (imports use [`FixtureAnalyzer`]).
 pub fn harness(db: &Path, cautions_acknowledged: bool) -> Harness<'static, SpallcastApp> {
+    harness_on(db, cautions_acknowledged, TODAY)
+}
+
+/// As [`harness`], with the window taking `today` as the current day.
+pub fn harness_on(
+    db: &Path,
+    cautions_acknowledged: bool,
+    today: &str,
+) -> Harness<'static, SpallcastApp> {
     let backend = Arc::new(StoreBackend::with_analyzer(Arc::new(FixtureAnalyzer)));
     let options = StartOptions {
         db_path: Some(db.to_path_buf()),
         start_view: None,
         screenshot: None,
         cautions_acknowledged,
-        today: Some(TODAY.parse().expect("a valid date")),
+        today: Some(today.parse().expect("a valid date")),
     };
     Harness::builder()
         .with_size(egui::vec2(1400.0, 900.0))
