@@ -221,21 +221,7 @@ impl SpectraPanel {
             .map(|(r, s)| axis.from_hz(s.get(kind).max_hz(), r.shaft_hz()))
             .filter(|x| x.is_finite())
             .fold(0.0_f64, f64::max);
-        let markers: Vec<FaultMarker> = match (history.factors, newest) {
-            (Some(f), Some((_, s))) if ref_shaft_hz > 0.0 => {
-                let m = &settings.markers;
-                fault_markers(
-                    &f.at_shaft_hz(ref_shaft_hz),
-                    m.harmonic_count,
-                    m.sideband_pairs,
-                    s.get(kind).max_hz(),
-                )
-                .into_iter()
-                .filter(|mk| marker_shown(m, mk))
-                .collect()
-            }
-            _ => Vec::new(),
-        };
+        let markers = shown_markers(settings, history, newest.map(|(_, s)| s), ref_shaft_hz);
         let step = stack_step(settings, curves);
         let scale = settings.scale;
         let count = curves.len();
@@ -473,4 +459,28 @@ fn controls_ui(ui: &mut egui::Ui, settings: &mut SpectraSettings) {
         ui.selectable_value(&mut settings.layout, Layout::Overlay, "Overlaid");
         ui.selectable_value(&mut settings.layout, Layout::Stacked, "Stacked in time");
     });
+}
+
+/// The fault-frequency markers switched on, at the newest reading's shaft speed, up to its top line.
+fn shown_markers(
+    settings: &SpectraSettings,
+    history: &BearingHistory,
+    newest: Option<&SharedSpectra>,
+    ref_shaft_hz: f64,
+) -> Vec<FaultMarker> {
+    match (history.factors, newest) {
+        (Some(f), Some(s)) if ref_shaft_hz > 0.0 => {
+            let m = &settings.markers;
+            fault_markers(
+                &f.at_shaft_hz(ref_shaft_hz),
+                m.harmonic_count,
+                m.sideband_pairs,
+                s.get(settings.kind).max_hz(),
+            )
+            .into_iter()
+            .filter(|mk| marker_shown(m, mk))
+            .collect()
+        }
+        _ => Vec::new(),
+    }
 }
