@@ -7,7 +7,7 @@ use crate::bands::{BandEnergy, band_energies, default_bands};
 use crate::envelope::{KurtogramLimits, PreparedSignal, fast_kurtogram, squared_envelope_spectrum};
 use crate::findings::{FamilyScore, SearchParams, score_family};
 use crate::indicators::{self, MachineGroup, Support, Zone, iso_velocity_band_hz, iso_zone};
-use crate::kinematics::{FaultFactors, FaultFrequencies, FaultKind};
+use crate::kinematics::{CheckFactors, FaultFactors, FaultFrequencies, FaultKind};
 use crate::spectrum::{
     Detector, PowerSpectrum, Quantity, STANDARD_GRAVITY, Spectrum, SpectrumEngine, SpectrumUnits,
     WelchParams, band_mean_square, check_finite, check_rate, conversion_from_g,

@@ -39,36 +39,8 @@ pub fn kurtosis(x: &[f64]) -> f64 {
     if m2 > 0.0 { m4 / (m2 * m2) } else { 0.0 }
 }
 
-/// ISO 20816-3 machine group.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
-pub enum MachineGroup {
-    /// Group 1: large machines (above 300 kW).
-    Large,
-    /// Group 2: medium machines (15 kW to 300 kW).
-    Medium,
-}
-
-impl MachineGroup {
-    /// Group from its number (1 or 2).
-    pub fn from_number(n: u8) -> Option<Self> {
-        match n {
-            1 => Some(Self::Large),
-            2 => Some(Self::Medium),
-            _ => None,
-        }
-    }
-}
-
-/// ISO 20816-3 support class in the measurement direction.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
-pub enum Support {
-    /// Lowest natural frequency at least 25 % above the running speed.
-    Rigid,
-    /// Otherwise.
-    Flexible,
-}
+/// The ISO 20816-3 machine group and support class are shared vocabulary (`spallcast-model`).
+pub use spallcast_model::{MachineGroup, Support};
 
 /// ISO 20816-3 evaluation zone.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize, Deserialize)]

@@ -1,6 +1,7 @@
 //! Rolling-element bearing kinematic frequencies (FTF, BSF, BPFO, BPFI), harmonics and sideband markers.
 //!
-//! Formulas (outer ring stationary, shaft on the inner ring), with `r = (d / D)·cos φ`:
+//! Formulas (outer ring stationary, shaft on the inner ring; computed once, in
+//! [`spallcast_model::FaultFactors::from_geometry`]), with `r = (d / D)·cos φ`:
 //! FTF = ½(1 − r), BPFO = ½n(1 − r), BPFI = ½n(1 + r), BSF = D/(2d)·(1 − r²), all in orders of the
 //! shaft speed. BSF is stored in the 1x ball-spin convention (rotation of the element about its own
 //! axis); the rolling-element DEFECT impact rate is 2×BSF, so rolling-element findings search the
@@ -55,147 +56,36 @@ impl BearingGeometry {
     /// As [`BearingGeometry::validate`].
     pub fn factors(&self) -> Result<FaultFactors, AnalysisError> {
         self.validate()?;
-        let n = f64::from(self.rolling_elements);
-        let r =
-            self.element_diameter / self.pitch_diameter * self.contact_angle_deg.to_radians().cos();
-        Ok(FaultFactors {
-            ftf: 0.5 * (1.0 - r),
-            bsf: self.pitch_diameter / (2.0 * self.element_diameter) * (1.0 - r * r),
-            bpfo: 0.5 * n * (1.0 - r),
-            bpfi: 0.5 * n * (1.0 + r),
-        })
+        FaultFactors::from_geometry(
+            self.rolling_elements,
+            self.element_diameter,
+            self.pitch_diameter,
+            self.contact_angle_deg,
+        )
+        .ok_or_else(|| AnalysisError::BadGeometry("impossible bearing geometry".to_owned()))
     }
 }
 
-/// Bearing fault factors in ORDERS of shaft speed (multiples of 1x). `bsf` is the 1x ball-spin factor.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
-pub struct FaultFactors {
-    /// Fundamental train (cage) frequency factor.
-    pub ftf: f64,
-    /// Ball spin frequency factor, 1x convention (element rotation about its own axis).
-    pub bsf: f64,
-    /// Ball pass frequency, outer race.
-    pub bpfo: f64,
-    /// Ball pass frequency, inner race.
-    pub bpfi: f64,
-}
+/// Bearing fault factors, fault frequencies and fault kinds are the shared vocabulary of
+/// `spallcast-model` (where the geometry formula lives); re-exported here under their old paths.
+pub use spallcast_model::{FaultFactors, FaultFrequencies, FaultKind};
 
-impl FaultFactors {
+/// Checks on [`FaultFactors`] that report in the analysis crate's error type.
+pub trait CheckFactors {
     /// Checks that every factor is a positive finite number.
     ///
     /// # Errors
     /// [`AnalysisError::BadFactors`] naming the first bad factor.
-    pub fn validate(&self) -> Result<(), AnalysisError> {
-        for (name, v) in [
-            ("ftf", self.ftf),
-            ("bsf", self.bsf),
-            ("bpfo", self.bpfo),
-            ("bpfi", self.bpfi),
-        ] {
-            if !(v.is_finite() && v > 0.0) {
-                return Err(AnalysisError::BadFactors(format!(
-                    "{name} must be a positive number, got {v}"
-                )));
-            }
-        }
-        Ok(())
-    }
-
-    /// Rolling-element defect impact rate in orders: 2×BSF.
-    pub fn rolling_element_defect(&self) -> f64 {
-        2.0 * self.bsf
-    }
-
-    /// Fault frequencies in Hz at a shaft speed in Hz.
-    pub fn at_shaft_hz(&self, shaft_hz: f64) -> FaultFrequencies {
-        FaultFrequencies {
-            shaft_hz,
-            ftf: self.ftf * shaft_hz,
-            bsf: self.bsf * shaft_hz,
-            bpfo: self.bpfo * shaft_hz,
-            bpfi: self.bpfi * shaft_hz,
-        }
-    }
+    fn validate(&self) -> Result<(), AnalysisError>;
 }
 
-/// Fault frequencies in Hz at one shaft speed. `bsf` is the 1x ball-spin frequency.
-#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
-pub struct FaultFrequencies {
-    /// Shaft rotation frequency (1x), Hz.
-    pub shaft_hz: f64,
-    /// Cage frequency, Hz.
-    pub ftf: f64,
-    /// Ball spin frequency (1x convention), Hz.
-    pub bsf: f64,
-    /// Outer-race ball pass frequency, Hz.
-    pub bpfo: f64,
-    /// Inner-race ball pass frequency, Hz.
-    pub bpfi: f64,
-}
-
-impl FaultFrequencies {
-    /// Repetition frequency (Hz) of impacts for a fault location: BPFO, BPFI, 2×BSF or FTF.
-    pub fn defect_rate_hz(&self, kind: FaultKind) -> f64 {
-        match kind {
-            FaultKind::OuterRace => self.bpfo,
-            FaultKind::InnerRace => self.bpfi,
-            FaultKind::RollingElement => 2.0 * self.bsf,
-            FaultKind::Cage => self.ftf,
-        }
-    }
-
-    /// Spacing (Hz) of the modulation sidebands expected around a fault's harmonics:
-    /// 1x for the inner race (the defect turns with the shaft), FTF for the outer race and rolling
-    /// elements (load zone / cage carry), none (`None`) for the cage.
-    pub fn sideband_spacing_hz(&self, kind: FaultKind) -> Option<f64> {
-        match kind {
-            FaultKind::InnerRace => Some(self.shaft_hz),
-            FaultKind::OuterRace | FaultKind::RollingElement => Some(self.ftf),
-            FaultKind::Cage => None,
-        }
-    }
-}
-
-/// Location of a bearing fault.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
-pub enum FaultKind {
-    /// Outer-race defect (BPFO family).
-    OuterRace,
-    /// Inner-race defect (BPFI family, ±1x sidebands).
-    InnerRace,
-    /// Rolling-element defect (2×BSF family, ±FTF sidebands).
-    RollingElement,
-    /// Cage defect (FTF family).
-    Cage,
-}
-
-impl FaultKind {
-    /// All fault kinds, in a fixed order.
-    pub const ALL: [Self; 4] = [
-        Self::OuterRace,
-        Self::InnerRace,
-        Self::RollingElement,
-        Self::Cage,
-    ];
-
-    /// Human label: "outer race", "inner race", "rolling element", "cage".
-    pub fn label(self) -> &'static str {
-        match self {
-            Self::OuterRace => "outer race",
-            Self::InnerRace => "inner race",
-            Self::RollingElement => "rolling element",
-            Self::Cage => "cage",
-        }
-    }
-
-    /// Short family tag used in markers and scalar names: "bpfo", "bpfi", "bsf2", "ftf".
-    pub fn tag(self) -> &'static str {
-        match self {
-            Self::OuterRace => "bpfo",
-            Self::InnerRace => "bpfi",
-            Self::RollingElement => "bsf2",
-            Self::Cage => "ftf",
+impl CheckFactors for FaultFactors {
+    fn validate(&self) -> Result<(), AnalysisError> {
+        match self.first_invalid() {
+            Some((name, v)) => Err(AnalysisError::BadFactors(format!(
+                "{name} must be a positive number, got {v}"
+            ))),
+            None => Ok(()),
         }
     }
 }

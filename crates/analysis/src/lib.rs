@@ -54,8 +54,8 @@ pub use diagnose::{
 };
 pub use indicators::{MachineGroup, Support, Zone};
 pub use kinematics::{
-    BearingGeometry, FaultFactors, FaultFrequencies, FaultKind, FaultMarker, MarkerFamily,
-    fault_markers,
+    BearingGeometry, CheckFactors, FaultFactors, FaultFrequencies, FaultKind, FaultMarker,
+    MarkerFamily, fault_markers,
 };
 pub use spectrum::{Detector, Quantity, Spectrum, SpectrumEngine, SpectrumUnits};
 pub use window::Window;
@@ -105,4 +105,5 @@ pub enum AnalysisError {
     BadParameter(String),
 }
 pub mod forecast;
+pub mod record;
 pub mod stage;

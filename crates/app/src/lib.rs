@@ -7,12 +7,13 @@
 //! cached; plots draw them decimated to screen columns (min/max per column, [`decimate`]).
 //!
 //! Views: "Since last route" (what changed since the previous route day, what is due, rejected files),
-//! "Spectra", "Life trend" and "Waveform" for the selected bearing. [`settings::View::OutagePlan`] is
-//! reserved for the outage-plan calendar.
+//! "Spectra", "Life trend" and "Waveform" for the selected bearing, and [`settings::View::OutagePlan`],
+//! the outage-plan calendar (`plan_view`: outages, bearings needing a slot, plan changes).
 //!
 //! The window's calls are advisory: a caution line is always shown in the status bar and a notice on
 //! first run. Isolate and lock out machines before work; local codes and licensed practice prevail.
 #![forbid(unsafe_code)]
+#![warn(missing_docs)]
 
 pub mod actions;
 mod app;

@@ -157,12 +157,12 @@ pub struct BearingHistory {
     pub key: BearingKey,
     /// Fault factors in orders, when the bearing type is known.
     pub factors: Option<FaultFactors>,
-    /// ISO 20816-3 machine group (1 or 2).
-    pub iso_group: u8,
-    /// ISO 20816-3 support class: `true` for flexible.
-    pub iso_flexible: bool,
-    /// Lubrication, "grease" or "oil".
-    pub lubrication: String,
+    /// ISO 20816-3 machine group.
+    pub iso_group: spallcast_analysis::MachineGroup,
+    /// ISO 20816-3 support class.
+    pub iso_support: spallcast_analysis::Support,
+    /// Lubrication.
+    pub lubrication: spallcast_analysis::forecast::Lubrication,
     /// Readings of every point on this bearing, oldest first.
     pub readings: Vec<ReadingSummary>,
     /// Start of each bearing life (the first is the first install), oldest first.

@@ -5,9 +5,11 @@ use std::path::Path;
 use std::sync::{Arc, Mutex};
 
 use anyhow::Context as _;
-use chrono::NaiveDate;
-use spallcast_analysis::{FaultFactors, FaultFrequencies, SpectrumEngine};
-use spallcast_store::{IsoSupport, ReadingAnalyzer, Store};
+use spallcast_analysis::forecast::Lubrication;
+use spallcast_analysis::record::StageRecord;
+use spallcast_analysis::{FaultFactors, FaultFrequencies, MachineGroup, SpectrumEngine, Support};
+use spallcast_model::units::date_of_unix_s;
+use spallcast_store::{ReadingAnalyzer, Store};
 
 use crate::model::{
     AreaNode, Attention, BearingHistory, BearingKey, BearingNode, ChangedBearing, DueBearing,
@@ -169,9 +171,9 @@ pub fn compute_spectra(
 struct PositionInfo {
     id: i64,
     factors: Option<FaultFactors>,
-    iso_group: u8,
-    iso_flexible: bool,
-    lubrication: String,
+    iso_group: MachineGroup,
+    iso_support: Support,
+    lubrication: Lubrication,
 }
 
 /// A read connection to one database.
@@ -180,16 +182,6 @@ struct StoreSource {
     positions: HashMap<BearingKey, PositionInfo>,
     /// `PRAGMA data_version` at the last check: it changes when another connection commits.
     data_version: Option<i64>,
-}
-
-fn factors_of(f: Option<spallcast_store::FaultFactors>) -> Option<FaultFactors> {
-    f.filter(spallcast_store::FaultFactors::is_valid)
-        .map(|f| FaultFactors {
-            ftf: f.ftf,
-            bsf: f.bsf,
-            bpfo: f.bpfo,
-            bpfi: f.bpfi,
-        })
 }
 
 impl StoreSource {
@@ -209,12 +201,7 @@ impl StoreSource {
 
     /// The diagnosis string of a reading's stored analysis, if any.
     fn diagnosis_of(&self, reading: ReadingId) -> anyhow::Result<Option<String>> {
-        Ok(self.store.analysis(reading)?.and_then(|a| {
-            a.document
-                .get("diagnosis")
-                .and_then(serde_json::Value::as_str)
-                .map(str::to_owned)
-        }))
+        Ok(self.store.analysis(reading)?.and_then(|a| a.diagnosis))
     }
 
     /// Highest stage and the diagnoses of a position's readings on one day.
@@ -261,10 +248,11 @@ impl PlantSource for StoreSource {
                         key.clone(),
                         PositionInfo {
                             id: b.position_id,
-                            factors: factors_of(b.factors),
-                            iso_group: machine.iso_group,
-                            iso_flexible: machine.iso_support == IsoSupport::Flexible,
-                            lubrication: b.lubrication.as_str().to_owned(),
+                            factors: b.factors.filter(FaultFactors::is_valid),
+                            iso_group: MachineGroup::from_number(machine.iso_group)
+                                .unwrap_or(MachineGroup::Medium),
+                            iso_support: machine.iso_support,
+                            lubrication: b.lubrication,
                         },
                     );
                     bearings.push(BearingNode {
@@ -361,7 +349,7 @@ impl PlantSource for StoreSource {
             let Some(call) = &state.latest_stage else {
                 continue;
             };
-            if let Some(forecast) = forecast_from(&call.evidence) {
+            if let Some(forecast) = record_of(call).as_ref().and_then(forecast_from) {
                 forecasts_stored = true;
                 due.push(DueBearing {
                     key: BearingKey {
@@ -424,18 +412,20 @@ impl PlantSource for StoreSource {
             });
         }
         readings.sort_by_key(|r| r.taken_at);
+        let record = latest_call.as_ref().and_then(record_of);
         let stage_call = latest_call.as_ref().map(|c| StageCallView {
             stage: c.stage,
-            evidence: evidence_sentences(&c.evidence),
+            evidence: record
+                .as_ref()
+                .map(StageRecord::sentences)
+                .unwrap_or_default(),
         });
-        let forecast = latest_call
-            .as_ref()
-            .and_then(|c| forecast_from(&c.evidence));
+        let forecast = record.as_ref().and_then(forecast_from);
         Ok(BearingHistory {
             key: key.clone(),
             factors: info.factors,
             iso_group: info.iso_group,
-            iso_flexible: info.iso_flexible,
+            iso_support: info.iso_support,
             lubrication: info.lubrication,
             readings,
             lives_started: lives.iter().map(|l| l.installed).collect(),
@@ -499,61 +489,23 @@ fn list_or_none(items: &[String]) -> String {
     }
 }
 
-/// Evidence sentences from a stored stage call: a JSON list of strings, or an object with an
-/// `evidence` list (and optionally `limits`, appended), possibly under `call` as the pipeline stores it.
-pub fn evidence_sentences(evidence: &serde_json::Value) -> Vec<String> {
-    let strings = |v: Option<&serde_json::Value>| -> Vec<String> {
-        v.and_then(serde_json::Value::as_array)
-            .map(|a| {
-                a.iter()
-                    .filter_map(|s| s.as_str().map(str::to_owned))
-                    .collect()
-            })
-            .unwrap_or_default()
-    };
-    match evidence {
-        serde_json::Value::Array(_) => strings(Some(evidence)),
-        serde_json::Value::String(s) => vec![s.clone()],
-        serde_json::Value::Object(map) => {
-            let call = map
-                .get("call")
-                .filter(|c| c.is_object())
-                .unwrap_or(evidence);
-            let mut out = strings(call.get("evidence"));
-            out.extend(strings(call.get("limits")));
-            out
-        }
-        _ => Vec::new(),
-    }
+/// The typed stage record of a stored call; `None` when the call holds no record of the current
+/// schema (written by another program or an older build: only its stage number is shown).
+pub fn record_of(call: &spallcast_store::StageCall) -> Option<StageRecord> {
+    serde_json::from_value::<StageRecord>(call.evidence.clone())
+        .ok()
+        .filter(StageRecord::is_current)
 }
 
-/// A forecast stored with a stage call under `forecast`: `replace_by` either as the analysis crate's
-/// projection (`t_s`, `lo_s`, `hi_s` in Unix seconds; `hi_s` null when open) or as a `YYYY-MM-DD`
-/// date with optional `earliest` / `latest` dates. `None` when absent or null.
-pub fn forecast_from(evidence: &serde_json::Value) -> Option<ForecastView> {
-    let forecast = evidence.get("forecast").filter(|f| f.is_object())?;
-    let replace_by = forecast.get("replace_by")?;
-    let from_s = |v: Option<&serde_json::Value>| {
-        let s = v?.as_f64()?;
-        chrono::DateTime::from_timestamp(s.floor() as i64, 0).map(|t| t.date_naive())
-    };
-    if replace_by.is_object() {
-        let central = from_s(replace_by.get("t_s"))?;
-        return Some(ForecastView {
-            replace_by: central,
-            earliest: from_s(replace_by.get("lo_s")).unwrap_or(central),
-            latest: from_s(replace_by.get("hi_s")).unwrap_or(central),
-        });
-    }
-    let date = |v: Option<&serde_json::Value>| {
-        let text = v?.as_str()?;
-        NaiveDate::parse_from_str(text.get(..10)?, "%Y-%m-%d").ok()
-    };
-    let central = date(Some(replace_by))?;
+/// The window's view of a record's forecast: the `replace_by` projection as dates (the interval's
+/// ends fall back to the central date when open). `None` without a `replace_by`.
+pub fn forecast_from(record: &StageRecord) -> Option<ForecastView> {
+    let p = record.forecast.as_ref()?.replace_by?;
+    let central = date_of_unix_s(p.t_s)?;
     Some(ForecastView {
         replace_by: central,
-        earliest: date(forecast.get("earliest")).unwrap_or(central),
-        latest: date(forecast.get("latest")).unwrap_or(central),
+        earliest: date_of_unix_s(p.lo_s).unwrap_or(central),
+        latest: p.hi_s.and_then(date_of_unix_s).unwrap_or(central),
     })
 }
 
@@ -561,15 +513,29 @@ pub fn forecast_from(evidence: &serde_json::Value) -> Option<ForecastView> {
 mod tests {
     use super::*;
 
+    /// A stage record as the pipeline stores it (schema 1), with the given `replace_by` projection.
+    fn record(replace_by: &serde_json::Value) -> StageRecord {
+        serde_json::from_value(serde_json::json!({
+            "schema_version": 1,
+            "point": "X-1",
+            "call": { "index": 0, "t_s": 1_770_000_000.0, "stage": 2, "raw_stage": 2,
+                      "location": "outer race", "confidence": 0.7,
+                      "evidence": ["BPFO in the envelope"], "limits": ["one point only"],
+                      "relative": {}, "damage_index_db": 4.0, "in_baseline": false },
+            "forecast": { "as_of_s": 1_770_000_000.0, "stage": 2, "location": "outer race",
+                          "confidence": 0.7, "evidence": [], "replace_by": replace_by,
+                          "risk_from": null, "method": "trend", "assumptions": [] },
+        }))
+        .unwrap()
+    }
+
     #[test]
     fn evidence_as_the_pipeline_stores_it() {
-        let v = serde_json::json!({
-            "call": { "stage": 2, "evidence": ["BPFO in the envelope"], "limits": ["one point only"] },
-            "forecast": { "replace_by": { "t_s": 1_780_000_000.0, "lo_s": 1_775_000_000.0, "hi_s": null } },
-            "point": "X-1"
-        });
+        let v = record(
+            &serde_json::json!({ "t_s": 1_780_000_000.0, "lo_s": 1_775_000_000.0, "hi_s": null }),
+        );
         assert_eq!(
-            evidence_sentences(&v),
+            v.sentences(),
             vec![
                 "BPFO in the envelope".to_owned(),
                 "one point only".to_owned()
@@ -580,25 +546,28 @@ mod tests {
         assert_eq!(f.replace_by.to_string(), "2026-05-28");
         assert_eq!(f.earliest.to_string(), "2026-03-31");
         assert_eq!(f.latest, f.replace_by, "open interval: no upper date");
-        assert!(forecast_from(&serde_json::json!({ "forecast": null })).is_none());
-        assert!(
-            forecast_from(&serde_json::json!({ "forecast": { "replace_by": null } })).is_none()
-        );
+        let mut none = v.clone();
+        none.forecast = None;
+        assert!(forecast_from(&none).is_none());
+        assert!(forecast_from(&record(&serde_json::Value::Null)).is_none());
     }
 
     #[test]
-    fn evidence_in_simpler_shapes() {
-        assert_eq!(
-            evidence_sentences(&serde_json::json!(["a", "b"])),
-            vec!["a", "b"]
-        );
-        assert_eq!(
-            evidence_sentences(&serde_json::json!({ "evidence": ["c"] })),
-            vec!["c"]
-        );
-        assert!(evidence_sentences(&serde_json::json!(3)).is_empty());
-        let f = forecast_from(&serde_json::json!({ "forecast": { "replace_by": "2027-03-08" } }))
-            .unwrap();
-        assert_eq!(f.replace_by.to_string(), "2027-03-08");
+    fn only_a_current_record_is_read() {
+        // Shapes the old lenient reader accepted are "no record" now: the stage number still shows.
+        let call = |evidence: serde_json::Value| spallcast_store::StageCall {
+            reading_id: 1,
+            stage: 2,
+            version: "test".into(),
+            evidence,
+            called_at: chrono::Utc::now(),
+        };
+        assert!(record_of(&call(serde_json::json!(["a", "b"]))).is_none());
+        assert!(record_of(&call(serde_json::json!({ "evidence": ["c"] }))).is_none());
+        let current = record(&serde_json::Value::Null);
+        assert!(record_of(&call(serde_json::to_value(&current).unwrap())).is_some());
+        let mut future = current;
+        future.schema_version = 2;
+        assert!(record_of(&call(serde_json::to_value(&future).unwrap())).is_none());
     }
 }

@@ -2,15 +2,13 @@
 
 use std::collections::BTreeMap;
 
-use spallcast_analysis::stage::{ReadingIndicators, ToneUse};
-use spallcast_analysis::{
-    DiagnoseOptions, FaultFactors, MachineGroup, Support, diagnose, stage_indicators_flat,
-};
+use spallcast_analysis::stage::{ReadingIndicators, ToneUse, keys};
+use spallcast_analysis::{DiagnoseOptions, diagnose};
 use spallcast_store::{AnalysisInput, AnalysisOutput, ReadingAnalyzer};
 
 /// Version of the analysis recorded beside every stored result. Change it whenever the analysis or the
 /// scalars it produces change: the store then recomputes older results (`Store::reanalyze_stale`).
-pub const ANALYZER_VERSION: &str = "spallcast-analysis-2";
+pub const ANALYZER_VERSION: &str = "spallcast-analysis-3";
 
 /// Runs the full diagnosis on each imported reading.
 #[derive(Debug, Clone, Copy, Default)]
@@ -22,30 +20,16 @@ impl ReadingAnalyzer for SpallcastAnalyzer {
     }
 
     fn analyze(&self, input: &AnalysisInput<'_>) -> Result<AnalysisOutput, String> {
-        let Some(f) = input.factors else {
+        let Some(factors) = input.factors else {
             return Err(
                 "the bearing position has no bearing type with geometry or fault factors"
                     .to_owned(),
             );
         };
-        let factors = FaultFactors {
-            ftf: f.ftf,
-            bsf: f.bsf,
-            bpfo: f.bpfo,
-            bpfi: f.bpfi,
-        };
         let samples: Vec<f64> = input.samples_g.iter().map(|&v| f64::from(v)).collect();
         let options = DiagnoseOptions {
-            iso_group: if input.iso_group == 1 {
-                MachineGroup::Large
-            } else {
-                MachineGroup::Medium
-            },
-            iso_support: if input.iso_flexible {
-                Support::Flexible
-            } else {
-                Support::Rigid
-            },
+            iso_group: input.iso_group,
+            iso_support: input.iso_support,
             ..DiagnoseOptions::default()
         };
         let diagnosis = diagnose(
@@ -56,12 +40,29 @@ impl ReadingAnalyzer for SpallcastAnalyzer {
             &options,
         )
         .map_err(|e| format!("analysis failed: {e}"))?;
+        // One set of trend-scalar names (`stage.*`, see `keys`): the stage indicators, plus the peak
+        // and the band energies that the stage logic does not read but the trends show.
         let mut scalars: BTreeMap<String, f64> =
-            stage_indicators_flat(&diagnosis).into_iter().collect();
-        scalars.extend(ReadingIndicators::from_diagnosis(&diagnosis, ToneUse::Use).to_scalars());
+            ReadingIndicators::from_diagnosis(&diagnosis, ToneUse::Use).to_scalars();
+        scalars.insert(
+            keys::ACCEL_PEAK_G.to_owned(),
+            diagnosis.indicators.accel_peak_g,
+        );
+        for b in diagnosis
+            .stage_indicators
+            .bands
+            .iter()
+            .filter(|b| b.available)
+        {
+            scalars.insert(keys::band_rms_g(&b.name), b.rms_g);
+        }
         scalars.retain(|_, v| v.is_finite());
         let document = serde_json::to_value(&diagnosis)
             .map_err(|e| format!("analysis result not storable: {e}"))?;
-        Ok(AnalysisOutput { scalars, document })
+        Ok(AnalysisOutput {
+            scalars,
+            document,
+            diagnosis: Some(diagnosis.diagnosis.clone()),
+        })
     }
 }

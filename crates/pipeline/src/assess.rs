@@ -3,8 +3,9 @@
 //! For every bearing position and each of its lives, the readings' stored indicators are loaded in
 //! time order per measurement point, assessed with [`spallcast_analysis::stage::assess_life`], and
 //! forecast with [`spallcast_analysis::forecast::forecast_life`]. [`assess_store`] writes the call of
-//! every reading into the store's stage-call table (evidence as JSON: the call, and the forecast as it
-//! stood at that reading). A position's summary is its most urgent point in the current life.
+//! every reading into the store's stage-call table as a typed
+//! [`StageRecord`](spallcast_analysis::record::StageRecord) (the call, and the forecast as it stood at
+//! that reading), serialised with serde. A position's summary is its most urgent point in the current life.
 //!
 //! Calls and forecasts are advisory; a person decides, and isolates and locks out the machine before
 //! any work on it.
@@ -16,11 +17,13 @@ use chrono::{DateTime, TimeZone as _, Utc};
 use serde::Serialize;
 use spallcast_analysis::Diagnosis;
 use spallcast_analysis::forecast::{
-    Backtest, Forecast, ForecastContext, Lubrication, backtest_life, forecast_life,
+    Backtest, Forecast, ForecastContext, backtest_life, forecast_life,
 };
+use spallcast_analysis::record::StageRecord;
 use spallcast_analysis::stage::{
     LifeReading, Location, ReadingIndicators, StageCall, StageOptions, ToneUse, assess_life, keys,
 };
+use spallcast_model::units::unix_s_of_date as date_s;
 use spallcast_store::{BearingState, LifeInfo, ReadingMeta, Store};
 
 /// Version of the stage logic recorded with every stored call.
@@ -123,18 +126,6 @@ fn reading_indicators(
     }
 }
 
-fn lubrication(l: spallcast_store::Lubrication) -> Lubrication {
-    match l {
-        spallcast_store::Lubrication::Oil => Lubrication::Oil,
-        spallcast_store::Lubrication::Grease => Lubrication::Grease,
-    }
-}
-
-fn date_s(d: chrono::NaiveDate) -> f64 {
-    d.and_hms_opt(0, 0, 0)
-        .map_or(0.0, |t| t.and_utc().timestamp() as f64)
-}
-
 /// Assesses every life of one bearing position (oldest life first), without writing anything.
 pub fn assess_position(
     store: &Store,
@@ -185,7 +176,7 @@ pub fn assess_position(
                 }
             }
             let ctx = ForecastContext {
-                lubrication: lubrication(state.lubrication),
+                lubrication: state.lubrication,
                 shaft_hz,
                 installed_s: Some(date_s(life.life.installed)),
                 rating_life_s: None,
@@ -310,8 +301,9 @@ pub fn assess_store(store: &mut Store, options: &StageOptions) -> anyhow::Result
             for p in &life.points {
                 report.readings_skipped += p.skipped.len();
                 for ((id, call), forecast) in p.reading_ids.iter().zip(&p.calls).zip(&p.forecasts) {
-                    let evidence =
-                        serde_json::json!({ "call": call, "forecast": forecast, "point": p.point });
+                    let record = StageRecord::new(p.point.clone(), call.clone(), forecast.clone());
+                    let evidence = serde_json::to_value(&record)
+                        .with_context(|| format!("encoding the stage record of reading {id}"))?;
                     store
                         .put_stage_call(*id, call.stage, STAGE_VERSION, &evidence)
                         .with_context(|| format!("storing the stage call of reading {id}"))?;

@@ -5,6 +5,7 @@
 //!   indicators as named scalars plus the whole diagnosis as the JSON document.
 //! - [`demo`]: creation of the demo plant database (simulated routes imported through the normal import).
 #![forbid(unsafe_code)]
+#![warn(missing_docs)]
 
 mod analyzer;
 pub mod assess;

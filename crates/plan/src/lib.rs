@@ -13,6 +13,7 @@
 //! Calls are advisory: isolate and lock out a machine before work on it; local codes and licensed
 //! practice prevail.
 #![forbid(unsafe_code)]
+#![warn(missing_docs)]
 
 pub mod atomic;
 pub mod board;

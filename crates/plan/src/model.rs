@@ -6,34 +6,8 @@
 use chrono::NaiveDate;
 use serde::{Deserialize, Serialize};
 
-/// A planned plant outage: the stop during which machines are down and bearings can be changed.
-#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
-pub struct Outage {
-    /// Database id (any unique number when built by hand).
-    pub id: i64,
-    /// Name, unique in the plant (e.g. "Spring intake shutdown").
-    pub name: String,
-    /// First day of the outage.
-    pub start: NaiveDate,
-    /// Last day of the outage (inclusive).
-    pub end: NaiveDate,
-    /// Areas taken down, by name.
-    pub areas: Vec<String>,
-    /// Extra machines taken down, by plant id (e.g. "IN-P1").
-    pub machines: Vec<String>,
-}
-
-impl Outage {
-    /// True when the outage takes the machine down: its area is listed, or the machine itself is.
-    pub fn takes_down(&self, machine_id: &str, area: &str) -> bool {
-        self.areas.iter().any(|a| a == area) || self.machines.iter().any(|m| m == machine_id)
-    }
-
-    /// Length in days, counting both ends.
-    pub fn days(&self) -> i64 {
-        (self.end - self.start).num_days() + 1
-    }
-}
+/// A planned plant outage: shared vocabulary (`spallcast-model`), the same type the store returns.
+pub use spallcast_model::Outage;
 
 /// One life of a bearing at a machine position (one installed bearing, from fitting to removal).
 #[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
@@ -85,44 +59,9 @@ pub struct BearingNeed {
     pub forecast: Forecast,
 }
 
-/// State of a planned replacement.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
-pub enum PlanStatus {
-    /// To be done in the outage.
-    Planned,
-    /// Done: the life was closed and a new one started.
-    Done,
-    /// Called off.
-    Cancelled,
-}
-
-impl PlanStatus {
-    /// The word stored in the database and written to exports.
-    pub fn as_str(self) -> &'static str {
-        match self {
-            Self::Planned => "planned",
-            Self::Done => "done",
-            Self::Cancelled => "cancelled",
-        }
-    }
-
-    /// Parses the stored word.
-    pub fn parse(word: &str) -> Option<Self> {
-        match word {
-            "planned" => Some(Self::Planned),
-            "done" => Some(Self::Done),
-            "cancelled" => Some(Self::Cancelled),
-            _ => None,
-        }
-    }
-}
-
-impl std::fmt::Display for PlanStatus {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        f.write_str(self.as_str())
-    }
-}
+/// State of a planned replacement: shared vocabulary (`spallcast-model`), the same type the store
+/// returns.
+pub use spallcast_model::PlanStatus;
 
 /// A bearing replacement placed in an outage.
 #[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]

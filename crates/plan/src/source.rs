@@ -7,14 +7,17 @@
 use std::collections::{BTreeMap, HashMap};
 
 use chrono::NaiveDate;
+use spallcast_analysis::record::StageRecord;
 use spallcast_analysis::spectrum::{Detector, Quantity, SpectrumEngine, SpectrumUnits};
+use spallcast_analysis::stage::keys;
 use spallcast_analysis::window::Window;
+use spallcast_model::units::date_of_unix_s;
 use spallcast_store::{BearingState, OutageInput, Store};
 
 use crate::board::PlanBoard;
 use crate::error::{PlanError, Result};
 use crate::html::{BearingImages, ImagesByLife, SpectrumImage, TrendImage};
-use crate::model::{BearingLife, BearingNeed, Forecast, Outage, PlanEntry, PlanStatus};
+use crate::model::{BearingLife, BearingNeed, Forecast, PlanEntry, PlanStatus};
 
 /// Bearings at or above this stage are offered for a slot. Stage 1 shows only ultrasonic-band energy;
 /// the replacement window opens at stage 2 (common practice, no source; REFERENCES §9), but a stage-1
@@ -23,8 +26,8 @@ pub const MIN_STAGE_FOR_SLOT: u8 = 1;
 
 /// The scalar trended in the report, with a fallback when it is absent.
 pub const TREND_SCALARS: [(&str, &str, &str); 2] = [
-    ("velocity_rms_mm_s", "velocity RMS", "mm/s"),
-    ("accel_rms_g", "acceleration RMS", "g"),
+    (keys::VELOCITY_RMS_MM_S, "velocity RMS", "mm/s"),
+    (keys::ACCEL_RMS_G, "acceleration RMS", "g"),
 ];
 
 /// A change the planner makes; the calendar view returns these and [`apply_change`] writes them.
@@ -83,7 +86,7 @@ pub fn apply_change(store: &mut Store, change: &PlanChange) -> Result<String> {
             for other in store.plan_entries(None)? {
                 if other.life_id == *life_id
                     && other.id != entry
-                    && other.status == spallcast_store::PlanStatus::Planned
+                    && other.status == PlanStatus::Planned
                 {
                     store.unplan(other.id)?;
                 }
@@ -166,11 +169,9 @@ pub fn current_lives(store: &Store) -> Result<Vec<BearingLife>> {
 }
 
 /// Forecasts of current lives read from their latest stage call: the call must be on a reading of
-/// that life and carry `replace_by` and `risk_from` (at the top level of the evidence document or
-/// under `forecast`), each either a date (`YYYY-MM-DD`) or the stage runner's projection
-/// (`{"t_s": .., "lo_s": .., "hi_s": ..}`, seconds on the Unix axis; the central `t_s` is used). Its
-/// `evidence` sentences (an array of strings, or a string, at the top level or under `call`) become
-/// the evidence text. Lives without such a call are left out.
+/// that life and hold a [`StageRecord`] of the current schema whose forecast has both `replace_by` and
+/// `risk_from` (the central estimates are the dates planned against). The call's evidence sentences
+/// become the evidence text. Lives without such a call are left out.
 pub fn stored_forecasts(store: &Store) -> Result<BTreeMap<i64, Forecast>> {
     let mut out = BTreeMap::new();
     for state in store.latest_states()? {
@@ -180,52 +181,28 @@ pub fn stored_forecasts(store: &Store) -> Result<BTreeMap<i64, Forecast>> {
         if life.removed.is_some() || store.reading(call.reading_id)?.life_id != Some(life.id) {
             continue;
         }
-        if let Some(f) = forecast_from_document(call.stage, &call.evidence) {
+        let Ok(record) = serde_json::from_value::<StageRecord>(call.evidence.clone()) else {
+            continue;
+        };
+        if let Some(f) = forecast_from_record(call.stage, &record) {
             out.insert(life.id, f);
         }
     }
     Ok(out)
 }
 
-/// Reads a forecast from a stage-call document (see [`stored_forecasts`]).
-pub fn forecast_from_document(stage: u8, doc: &serde_json::Value) -> Option<Forecast> {
-    let date = |key: &str| {
-        let value = doc
-            .get(key)
-            .or_else(|| doc.get("forecast").and_then(|f| f.get(key)))?;
-        match value {
-            // A date (or date-time) as text.
-            serde_json::Value::String(s) => s.get(..10)?.parse::<NaiveDate>().ok(),
-            // The stage runner's projection: `{ "t_s": central estimate, seconds on the Unix axis,
-            // "lo_s", "hi_s" }`; the central estimate is the date planned against.
-            serde_json::Value::Object(p) => {
-                let t_s = p.get("t_s")?.as_f64()?;
-                if !t_s.is_finite() {
-                    return None;
-                }
-                chrono::DateTime::from_timestamp(t_s.floor() as i64, 0).map(|t| t.date_naive())
-            }
-            _ => None,
-        }
-    };
-    // Evidence sentences: top level, or the stage runner's `call.evidence`.
-    let evidence_value = doc
-        .get("evidence")
-        .or_else(|| doc.get("call").and_then(|c| c.get("evidence")));
-    let evidence = match evidence_value {
-        Some(serde_json::Value::Array(items)) => items
-            .iter()
-            .filter_map(serde_json::Value::as_str)
-            .collect::<Vec<_>>()
-            .join("; "),
-        Some(serde_json::Value::String(s)) => s.clone(),
-        _ => String::new(),
-    };
+/// The planner's forecast from a stage record: `None` unless the record is of the current schema and
+/// its forecast has both dates.
+pub fn forecast_from_record(stage: u8, record: &StageRecord) -> Option<Forecast> {
+    if !record.is_current() {
+        return None;
+    }
+    let forecast = record.forecast.as_ref()?;
     Some(Forecast {
         stage,
-        evidence,
-        replace_by: date("replace_by")?,
-        risk_from: date("risk_from")?,
+        evidence: record.call.evidence.join("; "),
+        replace_by: date_of_unix_s(forecast.replace_by?.t_s)?,
+        risk_from: date_of_unix_s(forecast.risk_from?.t_s)?,
     })
 }
 
@@ -247,18 +224,7 @@ pub fn load_board_with(
         .iter()
         .map(|s| ((s.machine.as_str(), s.position.as_str()), s))
         .collect();
-    let outages = store
-        .outages()?
-        .into_iter()
-        .map(|o| Outage {
-            id: o.id,
-            name: o.name,
-            start: o.start,
-            end: o.end,
-            areas: o.areas,
-            machines: o.machines,
-        })
-        .collect();
+    let outages = store.outages()?;
     let needs = current_lives(store)?
         .into_iter()
         .filter_map(|life| {
@@ -286,7 +252,7 @@ pub fn load_board_with(
         entries.push(PlanEntry {
             id: e.id,
             outage_id: e.outage_id,
-            status: PlanStatus::parse(e.status.as_str()).unwrap_or(PlanStatus::Planned),
+            status: e.status,
             note: e.note,
             life: life_of(state, bt, e.life_id, installed),
             forecast: forecasts.get(&e.life_id).cloned(),

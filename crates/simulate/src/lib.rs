@@ -11,8 +11,13 @@
 //! Conventions: frequencies in Hz, acceleration in g, bearing factors in orders of shaft speed
 //! with BSF in the 1x ball-spin convention; a rolling-element defect strikes at 2×BSF.
 //!
+//! Independent oracle: the simulator keeps its own `FaultKind`, `Lubrication` and factor types and
+//! does not use `spallcast-model` or the analysis crate. The analysis is graded against it, so the two
+//! must not share code (a shared bug would pass unseen).
+//!
 //! Everything is deterministic from the seed: the same inputs give the same bytes.
 #![forbid(unsafe_code)]
+#![warn(missing_docs)]
 
 mod demo;
 mod error;

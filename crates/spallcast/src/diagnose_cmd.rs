@@ -4,8 +4,8 @@ use std::process::ExitCode;
 
 use anyhow::{Context, bail};
 use spallcast_analysis::{
-    AccelUnit, BearingGeometry, DiagnoseOptions, Diagnosis, DisplayUnits, FaultFactors,
-    MachineGroup, Support, VelocityUnit, diagnose,
+    AccelUnit, BearingGeometry, CheckFactors as _, DiagnoseOptions, Diagnosis, DisplayUnits,
+    FaultFactors, MachineGroup, Support, VelocityUnit, diagnose,
 };
 
 /// Arguments of `spallcast diagnose`.

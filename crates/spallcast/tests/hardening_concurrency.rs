@@ -39,7 +39,10 @@ fn two_imports_at_once_give_the_union_of_both() {
         .into_iter()
         .map(|route| {
             let (db, plant) = (db.clone(), plant.clone());
-            std::thread::spawn(move || import_command(&route, &db, &plant).output().unwrap())
+            std::thread::Builder::new()
+                .name("test-import".into())
+                .spawn(move || import_command(&route, &db, &plant).output().unwrap())
+                .unwrap()
         })
         .collect();
     let mut busy = 0;

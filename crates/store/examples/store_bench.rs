@@ -45,6 +45,7 @@ impl ReadingAnalyzer for Stats {
                 ("kurtosis".to_owned(), kurt),
             ]),
             document: serde_json::json!({ "diagnosis": "none", "rms": rms }),
+            diagnosis: Some("none".to_owned()),
         })
     }
 }
@@ -193,6 +194,7 @@ fn bench_scale() {
                     AnalysisOutput {
                         scalars: bench_scalars(rms),
                         document: serde_json::json!({ "diagnosis": "none" }),
+                        diagnosis: Some("none".to_owned()),
                     },
                 )
             })

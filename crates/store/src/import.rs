@@ -1,5 +1,6 @@
 //! Route import: `route.csv` plus recordings into the store, analysed in parallel, written one
-//! transaction per reading.
+//! transaction per chunk of readings. Each reading is still all-or-nothing: its row, waveform, results
+//! and log line are in the same transaction, so a crash leaves either all of them or none.
 
 use std::collections::HashMap;
 use std::fmt::Write as _;
@@ -23,16 +24,16 @@ use crate::{Store, now_text, utc_text};
 /// practice, no source).
 pub const CLIPPED_FRACTION_THRESHOLD: f64 = 0.001;
 
-/// Standard gravity, m/s² (the CGPM 1901 conventional value).
-const STANDARD_GRAVITY: f64 = 9.806_65;
+use spallcast_model::units::{STANDARD_GRAVITY_M_S2 as STANDARD_GRAVITY, rpm_to_hz};
+use spallcast_model::{MachineGroup, Support};
 
 /// The outcome of importing one route folder.
 ///
 /// **Finding changes.** A bearing is listed when one of its points' readings in this import has a
 /// diagnosis different from that same point's previous reading (the newest one taken before it).
 /// The diagnosis of a reading is its scalar `diagnosis_code` when the analyzer gives one, else the
-/// analysis document's top-level `"diagnosis"` string; readings with neither, or with no previous
-/// reading, are not compared.
+/// analyzer's [`diagnosis`](crate::AnalysisOutput::diagnosis) label (stored in its own column,
+/// `analysis.diagnosis`); readings with neither, or with no previous reading, are not compared.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct ImportSummary {
     /// The route folder.
@@ -95,8 +96,8 @@ struct PointCtx {
     position: String,
     sensitivity_mv_per_g: Option<f64>,
     factors: Option<FaultFactors>,
-    iso_group: u8,
-    iso_flexible: bool,
+    iso_group: MachineGroup,
+    iso_support: Support,
 }
 
 /// One manifest row that passed the cheap checks.
@@ -157,8 +158,8 @@ fn load_points(conn: &rusqlite::Connection) -> Result<HashMap<String, PointCtx>>
                 machine: r.get(3)?,
                 position: r.get(4)?,
                 sensitivity_mv_per_g: r.get(5)?,
-                iso_group: r.get(6)?,
-                iso_flexible: r.get::<_, String>(7)? == "flexible",
+                iso_group: machine_group(r.get(6)?),
+                iso_support: support(&r.get::<_, String>(7)?),
                 factors: factors_from_row(r, 8)?,
             },
         );
@@ -264,10 +265,10 @@ fn prepare(work: &Work, analyzer: &dyn ReadingAnalyzer) -> std::result::Result<P
     let input = AnalysisInput {
         samples_g: &samples_g,
         sample_rate_hz,
-        shaft_hz: row.rpm / 60.0,
+        shaft_hz: rpm_to_hz(row.rpm),
         factors: work.point.factors,
         iso_group: work.point.iso_group,
-        iso_flexible: work.point.iso_flexible,
+        iso_support: work.point.iso_support,
     };
     let mut output = analyzer
         .analyze(&input)
@@ -364,11 +365,11 @@ fn write_results(
     now: &str,
 ) -> Result<()> {
     tx.prepare_cached(
-        "INSERT INTO analysis (reading_id, version, document, analyzed_at) VALUES (?1, ?2, ?3, ?4)
+        "INSERT INTO analysis (reading_id, version, document, analyzed_at, diagnosis) VALUES (?1, ?2, ?3, ?4, ?5)
          ON CONFLICT (reading_id) DO UPDATE SET version = excluded.version, document = excluded.document,
-            analyzed_at = excluded.analyzed_at",
+            analyzed_at = excluded.analyzed_at, diagnosis = excluded.diagnosis",
     )?
-    .execute(params![id, version, serde_json::to_string(&output.document)?, now])?;
+    .execute(params![id, version, serde_json::to_string(&output.document)?, now, output.diagnosis])?;
     tx.prepare_cached("DELETE FROM reading_scalar WHERE reading_id = ?1")?
         .execute([id])?;
     let mut stmt = tx.prepare_cached(
@@ -385,11 +386,17 @@ fn diagnosis_label(output: &AnalysisOutput) -> Option<String> {
     if let Some(code) = output.scalars.get("diagnosis_code") {
         return Some(format!("code {code}"));
     }
-    output
-        .document
-        .get("diagnosis")
-        .and_then(serde_json::Value::as_str)
-        .map(str::to_owned)
+    output.diagnosis.clone()
+}
+
+/// The machine group stored as its number; the plant file admits only 1 and 2 (group 2 otherwise).
+fn machine_group(n: u8) -> MachineGroup {
+    MachineGroup::from_number(n).unwrap_or(MachineGroup::Medium)
+}
+
+/// The support class stored as its word (rigid otherwise).
+fn support(word: &str) -> Support {
+    Support::parse(word).unwrap_or(Support::Rigid)
 }
 
 /// The diagnosis label of the newest reading at `point_id` taken before `before_utc`.
@@ -401,7 +408,7 @@ fn previous_label(
     let row: Option<(Option<f64>, Option<String>)> = conn
         .prepare_cached(
             "SELECT (SELECT value FROM reading_scalar s WHERE s.reading_id = r.id AND s.name = 'diagnosis_code'),
-                    (SELECT json_extract(a.document, '$.diagnosis') FROM analysis a WHERE a.reading_id = r.id)
+                    (SELECT a.diagnosis FROM analysis a WHERE a.reading_id = r.id)
              FROM reading r WHERE r.point_id = ?1 AND r.taken_at_utc < ?2 ORDER BY r.taken_at_utc DESC LIMIT 1",
         )?
         .query_row(params![point_id, before_utc], |r| Ok((r.get(0)?, r.get(1).ok().flatten())))
@@ -452,8 +459,9 @@ impl Store {
     /// Imports a route folder (`route.csv` plus recordings).
     ///
     /// Rows are processed in chunks of about twice the number of worker threads: files are hashed and
-    /// checked for duplicates, then decoded, converted to g and analysed in parallel (rayon), then each
-    /// reading is written with its results in its own transaction. Bad rows and files are rejected with
+    /// checked for duplicates, then decoded, converted to g and analysed in parallel (rayon), then the
+    /// chunk's readings are written with their results in one transaction (a reading is never stored
+    /// without its results). Bad rows and files are rejected with
     /// a reason (and logged in `import_log`); the rest import. `progress(done, total)` is called after
     /// each chunk with counts of manifest rows.
     ///
@@ -655,7 +663,7 @@ impl Store {
             let new = NewReading {
                 point_id: w.point.point_id,
                 taken_at: w.row.taken_at,
-                shaft_hz: w.row.rpm / 60.0,
+                shaft_hz: rpm_to_hz(w.row.rpm),
                 sample_rate_hz: p.sample_rate_hz,
                 units: w.row.units.as_str(),
                 samples_g: &p.samples_g,
@@ -813,8 +821,8 @@ impl Store {
             sample_rate_hz: rate,
             shaft_hz: shaft,
             factors,
-            iso_group: group,
-            iso_flexible: support == "flexible",
+            iso_group: machine_group(group),
+            iso_support: self::support(&support),
         };
         Ok((id, crate::queries::decode_waveform(&blob), ctx))
     }

@@ -38,6 +38,7 @@
 //! Fault factors are in orders of shaft speed. BSF is stored in the 1x ball-spin convention (rotation of
 //! the element about its own axis); the rolling-element defect impact rate is 2×BSF.
 #![forbid(unsafe_code)]
+#![warn(missing_docs)]
 
 mod analyzer;
 mod error;

@@ -7,22 +7,8 @@ use serde::{Deserialize, Serialize};
 use crate::Store;
 use crate::error::{Result, StoreError};
 
-/// An outage as stored.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct Outage {
-    /// Database id.
-    pub id: i64,
-    /// Unique name.
-    pub name: String,
-    /// First day.
-    pub start: NaiveDate,
-    /// Last day.
-    pub end: NaiveDate,
-    /// Areas taken down (names).
-    pub areas: Vec<String>,
-    /// Extra machines taken down (machine ids/tags).
-    pub machines: Vec<String>,
-}
+/// An outage as stored, and the state of a plan entry: shared vocabulary (`spallcast-model`).
+pub use spallcast_model::{Outage, PlanStatus};
 
 /// Values for adding or updating an outage.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -37,36 +23,6 @@ pub struct OutageInput {
     pub areas: Vec<String>,
     /// Machine ids (tags).
     pub machines: Vec<String>,
-}
-
-/// Status of a plan entry.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(rename_all = "lowercase")]
-pub enum PlanStatus {
-    /// Replacement planned in the outage.
-    Planned,
-    /// Replacement done.
-    Done,
-    /// Cancelled.
-    Cancelled,
-}
-
-impl PlanStatus {
-    /// The word stored in the database.
-    pub fn as_str(self) -> &'static str {
-        match self {
-            Self::Planned => "planned",
-            Self::Done => "done",
-            Self::Cancelled => "cancelled",
-        }
-    }
-    fn parse(s: &str) -> Self {
-        match s {
-            "done" => Self::Done,
-            "cancelled" => Self::Cancelled,
-            _ => Self::Planned,
-        }
-    }
 }
 
 /// A bearing life planned into an outage.
@@ -396,7 +352,7 @@ impl Store {
                 id: r.get(0)?,
                 life_id: r.get(1)?,
                 outage_id: r.get(2)?,
-                status: PlanStatus::parse(&r.get::<_, String>(3)?),
+                status: PlanStatus::parse(&r.get::<_, String>(3)?).unwrap_or(PlanStatus::Planned),
                 note: r.get(4)?,
                 machine: r.get(5)?,
                 position: r.get(6)?,

@@ -109,25 +109,9 @@ pub enum MachineKind {
     Other,
 }
 
-/// ISO 20816-3 support class.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(rename_all = "lowercase")]
-pub enum IsoSupport {
-    /// Rigid support.
-    Rigid,
-    /// Flexible support.
-    Flexible,
-}
-
-/// Lubrication of a bearing position.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(rename_all = "lowercase")]
-pub enum Lubrication {
-    /// Grease-lubricated.
-    Grease,
-    /// Oil-fed.
-    Oil,
-}
+/// ISO 20816-3 support class and lubrication: shared vocabulary (`spallcast-model`), with the words
+/// of the plant file and the database as `as_str`/`parse`.
+pub use spallcast_model::{Lubrication, Support as IsoSupport};
 
 /// Measurement direction.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
@@ -160,8 +144,6 @@ macro_rules! text_enum {
     };
 }
 text_enum!(MachineKind { Pump = "pump", Fan = "fan", Motor = "motor", Gearbox = "gearbox", Other = "other" });
-text_enum!(IsoSupport { Rigid = "rigid", Flexible = "flexible" });
-text_enum!(Lubrication { Grease = "grease", Oil = "oil" });
 text_enum!(Direction { H = "H", V = "V", A = "A" });
 
 /// `[[areas.machines]]`.

@@ -225,6 +225,8 @@ pub struct AnalysisRecord {
     pub version: String,
     /// The JSON document.
     pub document: serde_json::Value,
+    /// The analyzer's diagnosis label, if it gave one.
+    pub diagnosis: Option<String>,
     /// The scalars.
     pub scalars: BTreeMap<String, f64>,
 }
@@ -663,12 +665,14 @@ impl Store {
 
     /// The stored analysis (document and scalars) of a reading, if it has been analysed.
     pub fn analysis(&self, reading_id: i64) -> Result<Option<AnalysisRecord>> {
-        let row: Option<(String, String)> = self
+        let row: Option<(String, String, Option<String>)> = self
             .conn
-            .prepare_cached("SELECT version, document FROM analysis WHERE reading_id = ?1")?
-            .query_row([reading_id], |r| Ok((r.get(0)?, r.get(1)?)))
+            .prepare_cached(
+                "SELECT version, document, diagnosis FROM analysis WHERE reading_id = ?1",
+            )?
+            .query_row([reading_id], |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?)))
             .optional()?;
-        let Some((version, doc)) = row else {
+        let Some((version, doc, diagnosis)) = row else {
             return Ok(None);
         };
         let mut scalars = BTreeMap::new();
@@ -683,6 +687,7 @@ impl Store {
             reading_id,
             version,
             document: serde_json::from_str(&doc)?,
+            diagnosis,
             scalars,
         }))
     }

@@ -192,6 +192,34 @@ UPDATE stage_call SET
     taken_at_utc = (SELECT r.taken_at_utc FROM reading r WHERE r.id = stage_call.reading_id);
 CREATE INDEX stage_call_position_time ON stage_call(position_id, taken_at_utc);
 ",
+    // 5: one vocabulary for stored results.
+    // - The diagnosis label gets its own column, so the store never reads inside the analyzer's
+    //   document. Existing analyses do not have it: they are marked stale (their version gets a
+    //   suffix), so `Store::reanalyze_stale` recomputes them and fills the column.
+    // - One set of trend-scalar names: the analyzer used to store each stage indicator twice (a flat
+    //   name and a `stage.` name). Flat names with a `stage.` twin are renamed where the twin is missing
+    //   and dropped otherwise; the other flat names of the analyzer become `stage.` names too.
+    // - Stage calls written by the stage runner (`{"call":..,"forecast":..,"point":..}`) are rewritten
+    //   into the versioned stage record by adding `"schema_version":1` (the only difference); calls of
+    //   any other shape are left as they are and read as "no record" (their stage number still shows).
+    r#"
+ALTER TABLE analysis ADD COLUMN diagnosis TEXT;
+UPDATE analysis SET version = version || '+before-diagnosis-column';
+UPDATE OR IGNORE reading_scalar SET name = 'stage.' || name
+    WHERE name IN ('accel_rms_g', 'accel_peak_g', 'crest_factor', 'kurtosis', 'velocity_rms_mm_s',
+                   'noise_floor_g');
+UPDATE OR IGNORE reading_scalar SET name = 'stage.one_x_amplitude' WHERE name = 'one_x_velocity_rms_mm_s';
+UPDATE OR IGNORE reading_scalar SET name = 'stage.band.' || substr(name, 6)
+    WHERE name LIKE 'band\_%\_rms\_g' ESCAPE '';
+DELETE FROM reading_scalar
+    WHERE name IN ('accel_rms_g', 'accel_peak_g', 'crest_factor', 'kurtosis', 'velocity_rms_mm_s',
+                   'noise_floor_g', 'one_x_velocity_rms_mm_s', 'iso_zone_index', 'envelope_score_db',
+                   'envelope_harmonics', 'linear_defect_harmonics', 'linear_sidebands')
+       OR name LIKE 'band\_%\_rms\_g' ESCAPE ''
+       OR name LIKE 'envelope\_%\_score\_db' ESCAPE '';
+UPDATE stage_call SET evidence = '{"schema_version":1,' || substr(evidence, 2)
+    WHERE evidence LIKE '{"call":%' AND evidence NOT LIKE '%"schema_version":%';
+"#,
 ];
 
 impl Store {

@@ -47,6 +47,7 @@ impl ReadingAnalyzer for RmsAnalyzer {
         Ok(AnalysisOutput {
             scalars,
             document: serde_json::json!({ "diagnosis": "none" }),
+            diagnosis: Some("none".to_owned()),
         })
     }
 }
@@ -571,12 +572,15 @@ fn a_named_pipe_in_the_route_folder_does_not_hang_the_import() {
         ..
     } = f;
     let (tx, rx) = std::sync::mpsc::channel();
-    let worker = std::thread::spawn(move || {
-        let s = store
-            .import_route(&route, &RmsAnalyzer, &mut |_, _| {})
-            .unwrap();
-        tx.send(s).unwrap();
-    });
+    let worker = std::thread::Builder::new()
+        .name("test-fifo-import".into())
+        .spawn(move || {
+            let s = store
+                .import_route(&route, &RmsAnalyzer, &mut |_, _| {})
+                .unwrap();
+            tx.send(s).unwrap();
+        })
+        .unwrap();
     let outcome = rx.recv_timeout(std::time::Duration::from_secs(10));
     if outcome.is_err() {
         // Unblock the reader (opening the write end and closing it gives it end-of-file) so that

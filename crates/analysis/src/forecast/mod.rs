@@ -26,15 +26,8 @@ use crate::stage::{Location, StageCall};
 
 const DAY_S: f64 = 86_400.0;
 
-/// How the bearing is lubricated.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
-pub enum Lubrication {
-    /// Grease-lubricated.
-    Grease,
-    /// Oil-fed (bath or circulating).
-    Oil,
-}
+/// How the bearing is lubricated: the shared vocabulary of `spallcast-model`.
+pub use spallcast_model::Lubrication;
 
 /// What the forecast knows about the bearing beyond its calls.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]

@@ -4,87 +4,8 @@ use std::collections::BTreeMap;
 
 use serde::{Deserialize, Serialize};
 
-/// Where on the bearing the evidence points.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize, Deserialize)]
-pub enum Location {
-    /// Outer race (BPFO family).
-    #[serde(rename = "outer race")]
-    OuterRace,
-    /// Inner race (BPFI family, ±1x sidebands).
-    #[serde(rename = "inner race")]
-    InnerRace,
-    /// Rolling element (2×BSF family, ±FTF sidebands).
-    #[serde(rename = "rolling element")]
-    RollingElement,
-    /// Cage (FTF family).
-    #[serde(rename = "cage")]
-    Cage,
-    /// Damage evidence that names no defect frequency (broadband, band energies, statistics).
-    #[serde(rename = "unknown")]
-    Unknown,
-    /// No bearing defect evidence.
-    #[serde(rename = "none")]
-    None,
-}
-
-impl Location {
-    /// The four kinematic locations, in the order of their scalar-name prefixes.
-    pub const KINEMATIC: [Location; 4] = [
-        Location::OuterRace,
-        Location::InnerRace,
-        Location::RollingElement,
-        Location::Cage,
-    ];
-
-    /// Human name ("outer race", ...).
-    pub fn name(self) -> &'static str {
-        match self {
-            Location::OuterRace => "outer race",
-            Location::InnerRace => "inner race",
-            Location::RollingElement => "rolling element",
-            Location::Cage => "cage",
-            Location::Unknown => "unknown",
-            Location::None => "none",
-        }
-    }
-
-    /// The defect tone the location is searched at.
-    pub fn tone_name(self) -> &'static str {
-        match self {
-            Location::OuterRace => "BPFO",
-            Location::InnerRace => "BPFI",
-            Location::RollingElement => "2×BSF",
-            Location::Cage => "FTF",
-            Location::Unknown | Location::None => "-",
-        }
-    }
-
-    /// Short prefix used in scalar names (`bpfo`, `bpfi`, `bsf2`, `ftf`).
-    pub fn key(self) -> &'static str {
-        match self {
-            Location::OuterRace => "bpfo",
-            Location::InnerRace => "bpfi",
-            Location::RollingElement => "bsf2",
-            Location::Cage => "ftf",
-            Location::Unknown => "unknown",
-            Location::None => "none",
-        }
-    }
-
-    /// Parses [`Location::name`] back (also accepts the `key` form).
-    pub fn parse(text: &str) -> Option<Location> {
-        [
-            Location::OuterRace,
-            Location::InnerRace,
-            Location::RollingElement,
-            Location::Cage,
-            Location::Unknown,
-            Location::None,
-        ]
-        .into_iter()
-        .find(|l| l.name() == text || l.key() == text)
-    }
-}
+/// Where on the bearing the evidence points: the shared fault-location vocabulary (`spallcast-model`).
+pub use spallcast_model::Location;
 
 /// Defect-tone evidence for one kinematic location in one reading.
 #[derive(Debug, Clone, Copy, PartialEq, Default, Serialize, Deserialize)]
@@ -131,8 +52,8 @@ pub struct ReadingIndicators {
 }
 
 /// Scalar names under which [`ReadingIndicators`] are stored per reading (see
-/// [`ReadingIndicators::to_scalars`]). Every name starts with `stage.` so they sit apart from the
-/// analyzer's other trend scalars.
+/// [`ReadingIndicators::to_scalars`]). This is the one set of trend-scalar names the pipeline's
+/// analyzer stores; every name starts with `stage.` (store migration 5 renamed the older flat names).
 pub mod keys {
     /// Overall acceleration RMS, g.
     pub const ACCEL_RMS_G: &str = "stage.accel_rms_g";
@@ -158,6 +79,26 @@ pub mod keys {
     pub const ENVELOPE_BAND_LO_HZ: &str = "stage.envelope_band_lo_hz";
     /// Upper edge of the demodulated band, Hz.
     pub const ENVELOPE_BAND_HI_HZ: &str = "stage.envelope_band_hi_hz";
+    /// The stage indicators a trend view offers, with their labels, in display order. A new stage
+    /// indicator adds its line here.
+    pub const TRENDED: [(&str, &str); 8] = [
+        (HIGH_BAND_RMS_G, "high band RMS"),
+        (RESONANCE_BAND_RMS_G, "resonance band RMS"),
+        (ACCEL_RMS_G, "acceleration RMS"),
+        (NOISE_FLOOR_G, "noise floor"),
+        (KURTOSIS, "kurtosis"),
+        (CREST_FACTOR, "crest factor"),
+        (ONE_X_AMPLITUDE, "1x amplitude"),
+        (VELOCITY_RMS_MM_S, "velocity RMS"),
+    ];
+
+    /// Acceleration peak, g (trended; not read by the stage logic).
+    pub const ACCEL_PEAK_G: &str = "stage.accel_peak_g";
+
+    /// RMS acceleration of one named analysis band, g (trended; `stage.band.<name>_rms_g`).
+    pub fn band_rms_g(band: &str) -> String {
+        format!("stage.band.{band}_rms_g")
+    }
 }
 
 fn tone_key(location: Location, field: &str) -> String {

@@ -10,7 +10,9 @@
 //! The stages follow the four-stage model of rolling-element bearing failure (common practice):
 //! 1 ultrasonic-band energy only; 2 resonances ring and defect tones appear in the envelope spectrum;
 //! 3 discrete defect harmonics with sidebands and a rising noise floor; 4 tones fade into broadband
-//! noise and 1x rises. Every threshold lives in [`rules`]. Where a recording cannot show a stage (no
+//! noise and 1x rises. Every stage threshold lives in [`rules`]; the confidence numbers in
+//! `evaluate.rs` (a base per kind of call, less per limit, more per supporting indicator) are a ranking
+//! heuristic, not thresholds, and are not in the table. Where a recording cannot show a stage (no
 //! ultrasonic bandwidth for stage 1, no fault factors for a location) the call says so in `limits`.
 //!
 //! Calls are advisory: a person decides, isolates and locks out the machine before any work on it.

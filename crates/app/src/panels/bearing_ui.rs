@@ -29,12 +29,8 @@ impl EvidencePanel {
             "{} lubrication · {} readings · ISO 20816-3 group {}, {} support",
             history.lubrication,
             history.readings.len(),
-            history.iso_group,
-            if history.iso_flexible {
-                "flexible"
-            } else {
-                "rigid"
-            }
+            history.iso_group.number(),
+            history.iso_support,
         ));
         if let Some(f) = history.factors {
             ui.label(

@@ -9,22 +9,13 @@ use egui_plot::{
 };
 use spallcast_analysis::indicators::zone_boundaries_mm_s;
 use spallcast_analysis::stage::{db_over, keys};
-use spallcast_analysis::{MachineGroup, Support};
 
 use crate::model::{BearingHistory, BearingKey, ReadingSummary};
 use crate::palette;
 
-/// The stage indicators the trend offers, with their labels, in display order.
-pub const INDICATORS: [(&str, &str); 8] = [
-    (keys::HIGH_BAND_RMS_G, "high band RMS"),
-    (keys::RESONANCE_BAND_RMS_G, "resonance band RMS"),
-    (keys::ACCEL_RMS_G, "acceleration RMS"),
-    (keys::NOISE_FLOOR_G, "noise floor"),
-    (keys::KURTOSIS, "kurtosis"),
-    (keys::CREST_FACTOR, "crest factor"),
-    (keys::ONE_X_AMPLITUDE, "1x amplitude"),
-    (keys::VELOCITY_RMS_MM_S, "velocity RMS"),
-];
+/// The stage indicators the trend offers, with their labels, in display order: the analysis crate's
+/// table ([`keys::TRENDED`]), so a new indicator does not touch the window.
+pub const INDICATORS: [(&str, &str); keys::TRENDED.len()] = keys::TRENDED;
 
 /// Indicators drawn when the user has not chosen.
 pub const DEFAULT_INDICATORS: [&str; 4] = [
@@ -34,8 +25,8 @@ pub const DEFAULT_INDICATORS: [&str; 4] = [
     keys::KURTOSIS,
 ];
 
-/// Overall velocity scalar names, newest convention first.
-const VELOCITY_KEYS: [&str; 2] = [keys::VELOCITY_RMS_MM_S, "velocity_rms_mm_s"];
+/// Overall velocity scalar names (one set of names since store migration 5).
+const VELOCITY_KEYS: [&str; 1] = [keys::VELOCITY_RMS_MM_S];
 
 /// Seconds per day, for the date axis.
 const DAY_S: f64 = 86_400.0;
@@ -258,12 +249,8 @@ fn velocity_ui(
         .iter()
         .filter_map(|r| Some([day_of(r), *r.scalars.get(*key)?]))
         .collect();
-    let group = MachineGroup::from_number(history.iso_group);
-    let support = if history.iso_flexible {
-        Support::Flexible
-    } else {
-        Support::Rigid
-    };
+    let group = Some(history.iso_group);
+    let support = history.iso_support;
     let mut drawn = false;
     Plot::new(("trend-velocity", &history.key))
         .height((ui.available_height() - 4.0).max(100.0))

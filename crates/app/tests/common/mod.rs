@@ -19,7 +19,7 @@ use spallcast_store::{
 };
 
 /// Shaft speed of the test pump, r/min (the CWRU 1 hp speed, so the fault frequencies can be checked
-/// against CWRU's published table in /work/shared/REFERENCES.md §1.2(a)).
+/// against CWRU's published table in the shared REFERENCES.md, §1.2(a)).
 pub const RPM: f64 = 1772.0;
 /// Sample rate of the synthesised readings, Hz.
 pub const FS_HZ: f64 = 12_800.0;
@@ -153,6 +153,7 @@ impl ReadingAnalyzer for FixtureAnalyzer {
         Ok(AnalysisOutput {
             scalars,
             document: serde_json::json!({ "diagnosis": "none" }),
+            diagnosis: Some("none".to_owned()),
         })
     }
 }
@@ -236,13 +237,13 @@ pub fn build_fixture() -> Fixture {
     }
     for (i, id) in de_readings.iter().enumerate() {
         let evidence = if i == 3 {
-            serde_json::json!({
-                "evidence": [EVIDENCE],
-                "limits": [],
-                "forecast": { "replace_by": REPLACE_BY, "risk_from": RISK_FROM },
-            })
+            stage_record(STAGES[i], EVIDENCE, Some((REPLACE_BY, RISK_FROM)))
         } else {
-            serde_json::json!({ "evidence": [format!("stage {} at reading {}", STAGES[i], i + 1)] })
+            stage_record(
+                STAGES[i],
+                &format!("stage {} at reading {}", STAGES[i], i + 1),
+                None,
+            )
         };
         store
             .put_stage_call(*id, STAGES[i], "window-test-1", &evidence)
@@ -253,6 +254,40 @@ pub fn build_fixture() -> Fixture {
         db,
         de_readings,
     }
+}
+
+/// A stage record as the pipeline stores it (`spallcast_analysis::record::StageRecord`, schema 1):
+/// one evidence sentence and, optionally, a forecast with `replace_by` and `risk_from` dates (midnight
+/// UTC, central estimates).
+fn stage_record(stage: u8, evidence: &str, dates: Option<(&str, &str)>) -> serde_json::Value {
+    let t = |day: &str| {
+        chrono::NaiveDate::parse_from_str(day, "%Y-%m-%d")
+            .unwrap()
+            .and_hms_opt(0, 0, 0)
+            .unwrap()
+            .and_utc()
+            .timestamp() as f64
+    };
+    let projection =
+        |day: &str| serde_json::json!({ "t_s": t(day), "lo_s": t(day), "hi_s": t(day) });
+    let forecast = dates.map(|(replace_by, risk_from)| {
+        serde_json::json!({ "as_of_s": 0.0, "stage": stage, "location": "outer race",
+            "confidence": 0.8, "evidence": [evidence], "replace_by": projection(replace_by),
+            "risk_from": projection(risk_from), "method": "trend", "assumptions": [] })
+    });
+    let record = serde_json::json!({
+        "schema_version": 1,
+        "point": "TP-P1-DE-H",
+        "call": { "index": 0, "t_s": 0.0, "stage": stage, "raw_stage": stage,
+                  "location": "outer race", "confidence": 0.8, "evidence": [evidence],
+                  "limits": [], "relative": {}, "damage_index_db": 0.0, "in_baseline": false },
+        "forecast": forecast,
+    });
+    // The fixture writes exactly the pipeline's type.
+    assert!(
+        serde_json::from_value::<spallcast_analysis::record::StageRecord>(record.clone()).is_ok()
+    );
+    record
 }
 
 fn add(
@@ -269,8 +304,8 @@ fn add(
         sample_rate_hz: FS_HZ,
         shaft_hz: RPM / 60.0,
         factors: None,
-        iso_group: 2,
-        iso_flexible: false,
+        iso_group: spallcast_analysis::MachineGroup::Medium,
+        iso_support: spallcast_analysis::Support::Rigid,
     };
     let mut out = analyzer.analyze(&input).unwrap();
     out.scalars

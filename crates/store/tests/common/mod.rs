@@ -143,7 +143,9 @@ impl ReadingAnalyzer for TestAnalyzer {
                 ("accel_peak_g".to_owned(), peak),
             ]),
             document: serde_json::json!({ "diagnosis": diagnosis, "rms": rms, "bpfo": input.factors.map(|f| f.bpfo),
-                "shaft_hz": input.shaft_hz, "iso_group": input.iso_group, "iso_flexible": input.iso_flexible }),
+                "shaft_hz": input.shaft_hz, "iso_group": input.iso_group.number(),
+                "iso_flexible": input.iso_support == spallcast_store::IsoSupport::Flexible }),
+            diagnosis: Some(diagnosis.to_owned()),
         })
     }
 }

@@ -1,0 +1,59 @@
+//! The typed record of one stage assessment, as stored with every reading's stage call.
+//!
+//! Defined here, once, because it holds the analysis crate's own types ([`StageCall`], [`Forecast`]).
+//! The pipeline writes it (serialised with serde) into the store's `stage_call.evidence`; the planner
+//! and the window read it back into this type, and a document that is not a record of the current
+//! [`STAGE_RECORD_SCHEMA`] is "no record" (the call's stage number still shows). There is no other
+//! accepted shape.
+//!
+//! Schema history: 1 — `{schema_version, point, call, forecast}`. Rows written before the version
+//! existed (`{call, forecast, point}`) are rewritten to 1 by store migration 5.
+
+use serde::{Deserialize, Serialize};
+
+use crate::forecast::Forecast;
+use crate::stage::StageCall;
+
+/// The schema version written into every [`StageRecord`]. Raise it when the record's shape changes,
+/// and add a store migration that rewrites (or marks stale) the stored rows.
+pub const STAGE_RECORD_SCHEMA: u32 = 1;
+
+/// What the stage assessment produced for one reading.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct StageRecord {
+    /// Always [`STAGE_RECORD_SCHEMA`] when written by this build.
+    pub schema_version: u32,
+    /// Measurement point (tag) of the reading.
+    pub point: String,
+    /// The stage call.
+    pub call: StageCall,
+    /// The forecast as it stood at this reading (`None` when nothing could be projected).
+    pub forecast: Option<Forecast>,
+}
+
+impl StageRecord {
+    /// A record of the current schema.
+    pub fn new(point: impl Into<String>, call: StageCall, forecast: Option<Forecast>) -> Self {
+        StageRecord {
+            schema_version: STAGE_RECORD_SCHEMA,
+            point: point.into(),
+            call,
+            forecast,
+        }
+    }
+
+    /// True when the record is of the schema this build reads.
+    pub fn is_current(&self) -> bool {
+        self.schema_version == STAGE_RECORD_SCHEMA
+    }
+
+    /// The sentences shown beside the call: its evidence, then what the recording cannot show.
+    pub fn sentences(&self) -> Vec<String> {
+        self.call
+            .evidence
+            .iter()
+            .chain(&self.call.limits)
+            .cloned()
+            .collect()
+    }
+}
