@@ -210,13 +210,13 @@ UPDATE OR IGNORE reading_scalar SET name = 'stage.' || name
                    'noise_floor_g');
 UPDATE OR IGNORE reading_scalar SET name = 'stage.one_x_amplitude' WHERE name = 'one_x_velocity_rms_mm_s';
 UPDATE OR IGNORE reading_scalar SET name = 'stage.band.' || substr(name, 6)
-    WHERE name LIKE 'band\_%\_rms\_g' ESCAPE '';
+    WHERE name LIKE 'band\_%\_rms\_g' ESCAPE '\';
 DELETE FROM reading_scalar
     WHERE name IN ('accel_rms_g', 'accel_peak_g', 'crest_factor', 'kurtosis', 'velocity_rms_mm_s',
                    'noise_floor_g', 'one_x_velocity_rms_mm_s', 'iso_zone_index', 'envelope_score_db',
                    'envelope_harmonics', 'linear_defect_harmonics', 'linear_sidebands')
-       OR name LIKE 'band\_%\_rms\_g' ESCAPE ''
-       OR name LIKE 'envelope\_%\_score\_db' ESCAPE '';
+       OR name LIKE 'band\_%\_rms\_g' ESCAPE '\'
+       OR name LIKE 'envelope\_%\_score\_db' ESCAPE '\';
 UPDATE stage_call SET evidence = '{"schema_version":1,' || substr(evidence, 2)
     WHERE evidence LIKE '{"call":%' AND evidence NOT LIKE '%"schema_version":%';
 "#,
@@ -478,6 +478,80 @@ mod tests {
         drop(store);
         let _again = Store::open(&path).unwrap();
         assert!(!dir.path().join("old.db.v1.1.bak").exists());
+    }
+
+    #[test]
+    fn migration_5_moves_results_to_one_vocabulary() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("v4.db");
+        {
+            let store = Store::open_to_version(&path, 4).unwrap();
+            // Result rows only (no plant): their reading rows are not needed for this check.
+            store
+                .conn
+                .pragma_update(None, "foreign_keys", "OFF")
+                .unwrap();
+            store
+                .conn
+                .execute_batch(
+                    r#"
+INSERT INTO analysis VALUES (1, 'spallcast-analysis-2', '{"diagnosis":"outer race"}', 'then');
+INSERT INTO reading_scalar VALUES (1, 'accel_rms_g', 0.5), (1, 'stage.accel_rms_g', 0.5),
+    (1, 'accel_peak_g', 2.0), (1, 'band_ultrasonic_rms_g', 0.1), (1, 'iso_zone_index', 1.0),
+    (1, 'envelope_bpfo_score_db', 9.0), (1, 'stage.kurtosis', 3.1), (2, 'kurtosis', 4.0);
+INSERT INTO stage_call VALUES (1, 2, 'spallcast-stage-1', '{"call":{"stage":2},"forecast":null,"point":"P"}', 'then', 1, 't'),
+    (2, 1, 'other', '{"evidence":["x"]}', 'then', 1, 't');
+"#,
+                )
+                .unwrap();
+        }
+        let store = Store::open(&path).unwrap();
+        let names: Vec<(i64, String)> = store
+            .conn
+            .prepare("SELECT reading_id, name FROM reading_scalar ORDER BY reading_id, name")
+            .unwrap()
+            .query_map([], |r| Ok((r.get(0)?, r.get(1)?)))
+            .unwrap()
+            .map(Result::unwrap)
+            .collect();
+        let expect = [
+            (1, "stage.accel_peak_g"),
+            (1, "stage.accel_rms_g"),
+            (1, "stage.band.ultrasonic_rms_g"),
+            (1, "stage.kurtosis"),
+            (2, "stage.kurtosis"),
+        ];
+        assert_eq!(
+            names,
+            expect.map(|(i, n)| (i, n.to_owned())).to_vec(),
+            "flat names renamed where no twin, dropped where one exists"
+        );
+        let (version, label): (String, Option<String>) = store
+            .conn
+            .query_row("SELECT version, diagnosis FROM analysis", [], |r| {
+                Ok((r.get(0)?, r.get(1)?))
+            })
+            .unwrap();
+        assert_ne!(version, "spallcast-analysis-2", "marked stale");
+        assert_eq!(
+            label, None,
+            "filled when re-analysed, not read from the document"
+        );
+        let evidence: Vec<String> = store
+            .conn
+            .prepare("SELECT evidence FROM stage_call ORDER BY reading_id")
+            .unwrap()
+            .query_map([], |r| r.get(0))
+            .unwrap()
+            .map(Result::unwrap)
+            .collect();
+        let first: serde_json::Value = serde_json::from_str(&evidence[0]).unwrap();
+        assert_eq!(first["schema_version"], 1);
+        assert_eq!(first["point"], "P");
+        assert_eq!(
+            evidence[1], r#"{"evidence":["x"]}"#,
+            "other shapes left alone"
+        );
     }
 
     #[test]
