@@ -47,6 +47,7 @@ mod planning;
 mod plant;
 mod plant_db;
 mod queries;
+mod records;
 mod schema;
 
 use std::path::PathBuf;
