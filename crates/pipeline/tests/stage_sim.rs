@@ -49,16 +49,21 @@ fn factors() -> BearingFactors {
     BearingFactors::from_geometry(9, 12.7, 65.0, 0.0)
 }
 
-fn run(case: &Case, months: usize) -> Outcome {
+/// Shaft speed, simulated machine and the analysis' fault factors of the invented bearing.
+fn machine() -> (f64, MachineParams, FaultFactors) {
     let f = factors();
     let shaft_hz = RPM / 60.0;
-    let params = MachineParams::typical(shaft_hz, f);
     let af = FaultFactors {
         ftf: f.ftf,
         bsf: f.bsf,
         bpfo: f.bpfo,
         bpfi: f.bpfi,
     };
+    (shaft_hz, MachineParams::typical(shaft_hz, f), af)
+}
+
+fn run(case: &Case, months: usize) -> Outcome {
+    let (shaft_hz, params, af) = machine();
     let sim_lube = match case.lubrication {
         Lubrication::Oil => spallcast_simulate::Lubrication::Oil,
         Lubrication::Grease => spallcast_simulate::Lubrication::Grease,
@@ -310,15 +315,7 @@ fn simulated_histories_are_staged_and_forecast() {
 // one more miss among 12 cannot show); asserted at 90 %.
 #[test]
 fn simulated_life_stage_calls_do_not_depend_on_reading_density() {
-    let f = factors();
-    let shaft_hz = RPM / 60.0;
-    let params = MachineParams::typical(shaft_hz, f);
-    let af = FaultFactors {
-        ftf: f.ftf,
-        bsf: f.bsf,
-        bpfo: f.bpfo,
-        bpfi: f.bpfi,
-    };
+    let (shaft_hz, params, af) = machine();
     let progression = Progression::draw(spallcast_simulate::Lubrication::Grease, 11);
     let onset_day = 3.0 * MONTH_DAYS;
     let mut dense = Vec::new();
