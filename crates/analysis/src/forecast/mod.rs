@@ -1,23 +1,30 @@
 //! Replacement forecast of one bearing life from its stage calls.
 //!
 //! The damage index of each call (dB over the life's baseline, see [`crate::stage::StageCall`]) is
-//! trended over the most recent readings with a least-squares line (log-linear growth of the
-//! amplitude) and an 80 % prediction interval. `replace_by` is when the trend reaches the stage-3
-//! level (the recommended replacement point lies between stages 2 and 3); `risk_from` is when it
-//! reaches the stage-4 level. With too few readings, or no growth yet, the forecast falls back on
-//! documented stage-duration ranges adjusted for lubrication and speed (or on a rating-life prior when
-//! the caller knows one) and says so in `assumptions`.
+//! the health indicator. Once it leaves the baseline scatter (the first prediction time, see
+//! [`degradation`]) an exponential degradation model with Bayesian updating projects when it reaches
+//! the stage-3 level (`replace_by`: the recommended replacement point lies between stages 2 and 3),
+//! the stage-4 level (`risk_from`) and the end-of-life level (`end_of_life`), each with an 80 %
+//! interval. Without growth the forecast falls back on documented stage-duration ranges (only on
+//! lives observed on a plant time scale, and revised when their date passes with no progression) or
+//! on a rating-life prior, and says so in `assumptions`. A life with no damage evidence (stage 0)
+//! gets no `replace_by` or `risk_from`: its end-of-life guess is a prior, labelled as one.
 //!
 //! All times are f64 seconds on the caller's axis, so any time scale works (months in a plant,
 //! minutes on a test rig). Forecasts are advisory.
 
 mod backtest;
+pub mod degradation;
 mod score;
 mod trend;
 
 use serde::{Deserialize, Serialize};
 
 pub use backtest::{Backtest, BacktestPoint, backtest_life};
+pub use degradation::{
+    DegradationPrior, Fpt, LifeFacts, ModelFit, detect_fpt, fit_model, fit_prior, life_facts,
+    residual_life_from_finished,
+};
 pub use score::{rul_percent_error, rul_score};
 pub use trend::{LineFit, Projection, fit_line, t_quantile_90};
 
@@ -46,8 +53,10 @@ pub struct ForecastContext {
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case")]
 pub enum ForecastMethod {
-    /// Trend of the damage index.
+    /// Trend of the damage index (older versions of the tool).
     Trend,
+    /// Exponential degradation model with Bayesian updating after the first prediction time.
+    Model,
     /// Stage-duration ranges from the first call of the current stage.
     StageDurations,
     /// Rating-life prior.
@@ -79,6 +88,39 @@ pub struct Forecast {
     pub method: ForecastMethod,
     /// The assumptions used, as sentences.
     pub assumptions: Vec<String>,
+    /// Projected end of life (the damage index reaching the end-of-life level), with its interval.
+    #[serde(default)]
+    pub end_of_life: Option<Projection>,
+    /// How `end_of_life` was obtained.
+    #[serde(default)]
+    pub end_of_life_basis: EolBasis,
+    /// First prediction time (damage index out of the baseline scatter), s.
+    #[serde(default)]
+    pub fpt_s: Option<f64>,
+    /// Rating-life prior (from the rating life, when known): shown as such, never a due date.
+    #[serde(default)]
+    pub rating_life_prior: Option<Projection>,
+    /// An earlier date passed with no progression and the forecast was moved on.
+    #[serde(default)]
+    pub revised: bool,
+}
+
+/// How an end-of-life projection was obtained.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum EolBasis {
+    /// The degradation model fitted to this life's damage index.
+    Model,
+    /// No damage growth to project: a survival prior (a multiple of the span observed so far), not a date.
+    SurvivalPrior,
+    /// From the finished lives of the same population (without damage growth to project, or when
+    /// earlier than the model): a prior, not a date.
+    FinishedLives,
+    /// Stage 4 without a model fit: the end is at hand.
+    Reached,
+    /// Nothing projected.
+    #[default]
+    None,
 }
 
 fn duration_scale(ctx: &ForecastContext) -> f64 {
@@ -117,31 +159,51 @@ fn onset_of(calls: &[StageCall], stage: u8) -> Option<f64> {
     calls.get(last_below.map_or(0, |i| i + 1)).map(|c| c.t_s)
 }
 
-/// Fits the damage-index trend over the recent readings outside the baseline.
-fn trend_fit(calls: &[StageCall]) -> Option<LineFit> {
-    let window = rules::TREND_WINDOW.value as usize;
-    let recent: Vec<&StageCall> = calls.iter().filter(|c| !c.in_baseline).collect();
-    let recent = &recent[recent.len().saturating_sub(window)..];
-    if (recent.len() as f64) < rules::TREND_MIN_READINGS.value {
-        return None;
+fn lube_name(l: Lubrication) -> &'static str {
+    match l {
+        Lubrication::Oil => "oil-fed",
+        Lubrication::Grease => "grease-fed",
     }
-    let t: Vec<f64> = recent.iter().map(|c| c.t_s).collect();
-    let y: Vec<f64> = recent.iter().map(|c| c.damage_index_db).collect();
-    fit_line(&t, &y)
 }
 
-/// Forecast at the latest of `calls` (one life, time order). `None` when there are no calls.
+fn fmt_span(s: f64) -> String {
+    if s >= 2.0 * DAY_S {
+        format!("{:.0} days", s / DAY_S)
+    } else if s >= 2.0 * 3600.0 {
+        format!("{:.1} h", s / 3600.0)
+    } else {
+        format!("{:.0} min", s / 60.0)
+    }
+}
+
+/// Forecast at the latest of `calls` (one life, time order) with the default degradation prior.
+/// `None` when there are no calls.
+pub fn forecast_life(calls: &[StageCall], ctx: &ForecastContext) -> Option<Forecast> {
+    forecast_life_with(calls, ctx, &DegradationPrior::default())
+}
+
+/// Forecast at the latest of `calls` with a given degradation prior (before the lubrication
+/// adjustment). `None` when there are no calls.
 #[allow(
     clippy::too_many_lines,
     reason = "the method cascade reads best in one place"
 )]
-pub fn forecast_life(calls: &[StageCall], ctx: &ForecastContext) -> Option<Forecast> {
+pub fn forecast_life_with(
+    calls: &[StageCall],
+    ctx: &ForecastContext,
+    prior: &DegradationPrior,
+) -> Option<Forecast> {
     let last = calls.last()?;
     let now = last.t_s;
+    let t0 = calls.first().map_or(now, |c| c.t_s);
+    let span = now - t0;
+    let prior = prior.clone().for_lubrication(ctx.lubrication);
+    let lube = lube_name(ctx.lubrication);
     let mut assumptions = vec![format!(
-        "Replacement point: damage index {:.0} dB over baseline (stage-3 onset); stage-4 risk: {:.0} dB.",
+        "Replacement point: damage index {:.0} dB over baseline (stage-3 onset); stage-4 risk: {:.0} dB; end of life: {:.0} dB.",
         rules::DAMAGE_STAGE3_DB.value,
-        rules::DAMAGE_STAGE4_DB.value
+        rules::DAMAGE_STAGE4_DB.value,
+        prior.eol_db
     )];
     let mut out = Forecast {
         as_of_s: now,
@@ -153,23 +215,88 @@ pub fn forecast_life(calls: &[StageCall], ctx: &ForecastContext) -> Option<Forec
         risk_from: None,
         method: ForecastMethod::None,
         assumptions: Vec::new(),
+        end_of_life: None,
+        end_of_life_basis: EolBasis::None,
+        fpt_s: None,
+        rating_life_prior: None,
+        revised: false,
     };
+    if let (Some(l10), Some(installed)) = (ctx.rating_life_s, ctx.installed_s)
+        && l10 > 0.0
+    {
+        // Single lives scatter widely around the rating life: half to twice it.
+        out.rating_life_prior = Some(Projection {
+            t_s: installed + l10,
+            lo_s: installed + 0.5 * l10,
+            hi_s: Some(installed + 2.0 * l10),
+        });
+    }
+    let fit = fit_model(calls, &prior).filter(|f| f.rate_mean > 0.0);
+    let from_lives = residual_life_from_finished(&prior.finished_lives_s).map(|r| Projection {
+        t_s: now + r,
+        lo_s: now + 0.5 * r,
+        hi_s: None,
+    });
+    if let Some(f) = &fit {
+        out.fpt_s = Some(f.fpt.t_s);
+        assumptions.push(format!(
+            "Degradation model: damage index out of the baseline scatter (above {:.1} dB, 3 sigma) since {} ago; exponential growth of the excess amplitude fitted to {} readings since then with a prior from finished lives ({lube}), time in units of the healthy span ({}); 80 % intervals.",
+            f.fpt.threshold_db,
+            fmt_span(now - f.fpt.t_s),
+            f.n,
+            fmt_span(f.unit_s)
+        ));
+        if let Some(p) = f.crossing(prior.eol_db).filter(|p| p.t_s > now) {
+            out.end_of_life = Some(p);
+            out.end_of_life_basis = EolBasis::Model;
+        }
+    }
+    // The finished lives that lasted this long bound the model's end of life from above (a late
+    // projection costs more than an early one), and stand in for it without one.
+    if let Some(p) = from_lives
+        && out.end_of_life.is_none_or(|m| p.t_s < m.t_s)
+    {
+        out.end_of_life = Some(p);
+        out.end_of_life_basis = EolBasis::FinishedLives;
+        assumptions.push(format!(
+            "End of life from the {} finished lives of this population (the remaining life that best fits the second half of their lives; a prior, not a due date).",
+            prior.finished_lives_s.len()
+        ));
+    }
+    if out.end_of_life.is_none() && span > 0.0 {
+        let r = prior.survival_ratio;
+        out.end_of_life = Some(Projection {
+            t_s: now + r * span,
+            lo_s: now + 0.5 * r * span,
+            hi_s: None,
+        });
+        out.end_of_life_basis = EolBasis::SurvivalPrior;
+        assumptions.push(format!(
+            "End of life: no damage growth to project, so only a prior ({r:.2} × the {} observed so far, {lube}); not a due date.",
+            fmt_span(span)
+        ));
+    }
     if last.stage >= 4 {
         out.replace_by = Some(reached(onset_of(calls, 3).unwrap_or(now)));
         out.risk_from = Some(reached(onset_of(calls, 4).unwrap_or(now)));
         out.method = ForecastMethod::Reached;
+        if out.end_of_life.is_none() {
+            out.end_of_life = Some(reached(now));
+            out.end_of_life_basis = EolBasis::Reached;
+        }
         assumptions
             .push("Stage 4 reached: no prediction is meaningful; replace immediately.".to_owned());
         out.assumptions = assumptions;
         return Some(out);
     }
-    let span = calls.first().map_or(0.0, |c| now - c.t_s);
-    let fit = trend_fit(calls).filter(|f| {
-        f.slope > 0.0
-            && f.slope > f.slope_se()
-            && last.damage_index_db >= rules::TREND_FLOOR_DB.value
-            && f.predict(now) >= rules::TREND_FLOOR_DB.value
-    });
+    if last.stage == 0 {
+        assumptions.push(
+            "No bearing defect evidence: no replace-by or risk date (a rating-life prior, when known, is shown only as a prior)."
+                .to_owned(),
+        );
+        out.assumptions = assumptions;
+        return Some(out);
+    }
     if last.stage >= 3 {
         out.replace_by = Some(reached(onset_of(calls, 3).unwrap_or(now)));
         out.method = ForecastMethod::Reached;
@@ -178,62 +305,24 @@ pub fn forecast_life(calls: &[StageCall], ctx: &ForecastContext) -> Option<Forec
                 .to_owned(),
         );
     }
-    if let Some(fit) = fit {
-        // Search far enough ahead for slow trends: many times the life seen so far.
-        let horizon = (20.0 * span).max(365.0 * DAY_S);
+    if let Some(f) = &fit {
         let replace = if last.stage >= 3 {
             out.replace_by
         } else {
-            fit.crossing(rules::DAMAGE_STAGE3_DB.value, now, horizon)
+            f.crossing(rules::DAMAGE_STAGE3_DB.value)
         };
-        let risk = fit.crossing(rules::DAMAGE_STAGE4_DB.value, now, horizon);
+        let risk = f.crossing(rules::DAMAGE_STAGE4_DB.value);
         if replace.is_some() || risk.is_some() {
-            assumptions.push(format!(
-                "Trend: damage index grows {:.2} dB per day over the last {} readings (log-linear growth), 80 % prediction interval.",
-                fit.slope * DAY_S,
-                fit.n
-            ));
             out.replace_by = replace;
             out.risk_from = risk;
             if last.stage < 3 {
-                out.method = ForecastMethod::Trend;
+                out.method = ForecastMethod::Model;
             }
             out.assumptions = assumptions;
             return Some(out);
         }
     }
-    // Fallbacks.
-    if let (Some(l10), Some(installed)) = (ctx.rating_life_s, ctx.installed_s)
-        && l10 > 0.0
-        && last.stage <= 1
-    {
-        // Stage 3 begins with about 1-5 % of the rating life left, stage 4 with about 1 %; single
-        // lives scatter widely around L10, so the interval spans half to twice the central value.
-        let centre_replace = installed
-            + (1.0
-                - 0.5
-                    * (rules::STAGE3_LIFE_FRACTION_MIN.value
-                        + rules::STAGE3_LIFE_FRACTION_MAX.value))
-                * l10;
-        let centre_risk = installed + (1.0 - rules::STAGE3_LIFE_FRACTION_MIN.value) * l10;
-        let proj = |c: f64| {
-            let age = c - installed;
-            Projection {
-                t_s: c.max(now),
-                lo_s: (installed + 0.5 * age).max(now),
-                hi_s: Some((installed + 2.0 * age).max(now)),
-            }
-        };
-        out.replace_by = Some(proj(centre_replace));
-        out.risk_from = Some(proj(centre_risk));
-        out.method = ForecastMethod::RatingLife;
-        assumptions.push(format!(
-            "Too few readings with damage growth to fit a trend: projected from the rating life ({:.1} h) as a prior; single lives scatter widely around it (interval ×0.5 to ×2).",
-            l10 / 3600.0
-        ));
-        out.assumptions = assumptions;
-        return Some(out);
-    }
+    // Fallbacks: the rating life as fractions per stage, else stage-duration ranges.
     if let Some(l10) = ctx.rating_life_s.filter(|l| *l > 0.0)
         && (2..=3).contains(&last.stage)
     {
@@ -259,23 +348,30 @@ pub fn forecast_life(calls: &[StageCall], ctx: &ForecastContext) -> Option<Forec
             out.risk_from = Some(range(from, s3_lo, s3_hi));
         }
         assumptions.push(format!(
-            "Too few readings with damage growth to fit a trend: remaining life from the stage onset taken as a fraction of the rating life ({:.1} h): stage 2 about 5-10 %, stage 3 about 1-5 % (from memory).",
+            "No damage growth to fit yet: remaining life from the stage onset taken as a fraction of the rating life ({:.1} h): stage 2 about 5-10 %, stage 3 about 1-5 % (from memory).",
             l10 / 3600.0
+        ));
+        revise_if_passed(&mut out, &mut assumptions, now);
+        out.assumptions = assumptions;
+        return Some(out);
+    }
+    // Stage durations are plant-day figures: they apply only to a life observed on a plant time
+    // scale (at least the shortest duration); a rig life of hours gets no date from them.
+    if span < rules::STAGE3_DAYS_MIN.value * DAY_S {
+        assumptions.push(format!(
+            "No damage growth to fit yet, and this life has been observed for only {}: plant stage-duration ranges do not apply at this time scale, so no date until the damage index grows.",
+            fmt_span(span)
         ));
         out.assumptions = assumptions;
         return Some(out);
     }
     let scale = duration_scale(ctx);
-    let lube = match ctx.lubrication {
-        Lubrication::Oil => "oil-fed",
-        Lubrication::Grease => "grease-fed",
-    };
     let d = |r: rules::Rule| r.value * DAY_S * scale;
     let s3 = (d(rules::STAGE3_DAYS_MIN), d(rules::STAGE3_DAYS_MAX));
     let s2 = (d(rules::STAGE2_DAYS_MIN), d(rules::STAGE2_DAYS_MAX));
     let s1 = (d(rules::STAGE1_DAYS_MIN), d(rules::STAGE1_DAYS_MAX));
     let note = format!(
-        "Too few readings with damage growth to fit a trend: stage-duration ranges used ({lube}, ×{scale:.2} for lubrication and speed {:.0} r/min against {:.0} r/min).",
+        "No damage growth to fit yet: stage-duration ranges used ({lube}, ×{scale:.2} for lubrication and speed {:.0} r/min against {:.0} r/min).",
         ctx.shaft_hz * 60.0,
         rules::REFERENCE_SPEED_HZ.value * 60.0
     );
@@ -292,23 +388,51 @@ pub fn forecast_life(calls: &[StageCall], ctx: &ForecastContext) -> Option<Forec
             out.method = ForecastMethod::StageDurations;
             assumptions.push(note);
         }
-        1 => {
+        _ => {
             let from = onset_of(calls, 1).unwrap_or(now);
             out.replace_by = Some(range(from, s1.0 + s2.0, s1.1 + s2.1));
             out.risk_from = Some(range(from, s1.0 + s2.0 + s3.0, s1.1 + s2.1 + s3.1));
             out.method = ForecastMethod::StageDurations;
             assumptions.push(note);
         }
-        _ => {
-            assumptions
-                .push("No bearing defect evidence and no growth: no date projected.".to_owned());
-        }
     }
+    revise_if_passed(&mut out, &mut assumptions, now);
     if last.stage == 3 && out.risk_from.is_some() {
         out.method = ForecastMethod::Reached;
     }
     out.assumptions = assumptions;
     Some(out)
+}
+
+/// A fallback date whose centre has passed while the stage stayed where it was (no progression,
+/// no damage growth) is moved on: the same range counted again from now, and the forecast says so.
+fn revise_if_passed(out: &mut Forecast, assumptions: &mut Vec<String>, now: f64) {
+    let passed = |p: &Option<Projection>| p.is_some_and(|p| p.t_s < now);
+    let stale_replace = out.stage < 3 && passed(&out.replace_by);
+    let stale_risk = passed(&out.risk_from);
+    if !(stale_replace || stale_risk) {
+        return;
+    }
+    let old = if stale_replace {
+        out.replace_by
+    } else {
+        out.risk_from
+    };
+    let d = old.map_or(0.0, |p| (now - p.lo_s).max(0.0));
+    let shift = |p: Projection| Projection {
+        t_s: p.t_s + d,
+        lo_s: p.lo_s + d,
+        hi_s: p.hi_s.map(|h| h + d),
+    };
+    if stale_replace {
+        out.replace_by = out.replace_by.map(shift);
+    }
+    out.risk_from = out.risk_from.map(shift);
+    out.revised = true;
+    assumptions.push(format!(
+        "Revised: the earlier date ({:.0} days before this reading) passed with no progression of stage or damage index, so the range is moved on to start at this reading.",
+        old.map_or(0.0, |p| (now - p.t_s) / DAY_S)
+    ));
 }
 
 #[cfg(test)]

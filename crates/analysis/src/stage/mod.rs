@@ -70,48 +70,105 @@ pub struct StageCall {
     pub in_baseline: bool,
 }
 
-/// Options of the assessment.
+/// Options of the assessment. Every window is a share of the time this life has been observed so
+/// far (first reading to the reading being called), so the same life gives the same calls at any
+/// reading density and on any time scale (a monthly route or a test rig at 10 s).
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct StageOptions {
-    /// Readings at the start of a life taken as the baseline when none is marked.
-    pub baseline_readings: usize,
-    /// Consecutive readings at a stage before later calls stay at least there.
-    pub confirm_readings: usize,
+    /// Share of the observed span, from the first reading, whose readings form the baseline when
+    /// none is marked (the first reading always counts).
+    pub baseline_fraction: f64,
+    /// Trailing confirmation and hold window as a share of the observed span.
+    pub confirm_fraction: f64,
+    /// Share of the readings in the confirmation window that must show a stage for it to hold.
+    pub confirm_share: f64,
+    /// Trailing hold window (hysteresis) as a share of the observed span.
+    pub hold_fraction: f64,
 }
 
 impl Default for StageOptions {
     fn default() -> Self {
         StageOptions {
-            baseline_readings: rules::BASELINE_READINGS.value as usize,
-            confirm_readings: rules::CONFIRM_READINGS.value as usize,
+            baseline_fraction: rules::BASELINE_FRACTION.value,
+            confirm_fraction: rules::CONFIRM_FRACTION.value,
+            confirm_share: rules::CONFIRM_SHARE.value,
+            hold_fraction: rules::HOLD_FRACTION.value,
         }
     }
 }
 
-/// Indices of the readings forming the baseline: the marked ones, else the first `n`.
-pub fn baseline_indices(readings: &[LifeReading], options: &StageOptions) -> Vec<usize> {
+/// Indices of the readings forming the baseline as seen at reading `at`: the marked ones, else
+/// those within the first `baseline_fraction` of the span observed up to `at` (at least the first).
+pub fn baseline_indices_at(
+    readings: &[LifeReading],
+    options: &StageOptions,
+    at: usize,
+) -> Vec<usize> {
     let marked: Vec<usize> = readings
         .iter()
         .enumerate()
         .filter(|(_, r)| r.baseline_mark)
         .map(|(i, _)| i)
         .collect();
-    if marked.is_empty() {
-        (0..readings.len().min(options.baseline_readings.max(1))).collect()
-    } else {
-        marked
+    if !marked.is_empty() {
+        return marked;
     }
+    let Some(first) = readings.first() else {
+        return Vec::new();
+    };
+    let at = at.min(readings.len() - 1);
+    let span = readings[at].t_s - first.t_s;
+    let limit = first.t_s + options.baseline_fraction.clamp(0.0, 1.0) * span.max(0.0);
+    let mut out: Vec<usize> = (0..=at).filter(|&j| readings[j].t_s <= limit).collect();
+    if out.is_empty() {
+        out.push(0);
+    }
+    out
+}
+
+/// Indices of the readings forming the baseline of the whole life (as seen at its last reading).
+pub fn baseline_indices(readings: &[LifeReading], options: &StageOptions) -> Vec<usize> {
+    baseline_indices_at(readings, options, readings.len().saturating_sub(1))
+}
+
+/// First index of the trailing window ending at `i`: the readings within `fraction` of the span
+/// observed up to `i`, and always at least the reading before `i`.
+fn window_start(readings: &[LifeReading], i: usize, fraction: f64) -> usize {
+    let t0 = readings.first().map_or(0.0, |r| r.t_s);
+    let t = readings[i].t_s;
+    let w = fraction.max(0.0) * (t - t0).max(0.0);
+    let mut j = i;
+    while j > 0 && readings[j - 1].t_s >= t - w {
+        j -= 1;
+    }
+    j.min(i.saturating_sub(1))
 }
 
 /// Assesses every reading of one life (readings in time order). Returns one call per reading.
+///
+/// The baseline grows with the life (the first `baseline_fraction` of the span seen so far) until
+/// damage is first confirmed, then stays as it was. A stage is confirmed, and becomes the floor of
+/// later calls, when at least `confirm_share` of the readings in the trailing window (a
+/// `confirm_fraction` of the span, at least this reading and the one before) show it. A stage shown
+/// by any reading within the trailing `hold_fraction` of the span is held until that window has
+/// passed it (hysteresis in time).
+#[allow(
+    clippy::too_many_lines,
+    reason = "baseline, confirmation, hold and evidence of one call read best together"
+)]
 pub fn assess_life(readings: &[LifeReading], options: &StageOptions) -> Vec<StageCall> {
-    let base_idx = baseline_indices(readings, options);
     let marked = readings.iter().any(|r| r.baseline_mark);
     let mut history = evaluate::History::default();
     let mut calls: Vec<StageCall> = Vec::with_capacity(readings.len());
-    let confirm = options.confirm_readings.max(1);
     let mut floor: u8 = 0;
+    let mut frozen: Option<Vec<usize>> = None;
+    let mut base_idx: Vec<usize> = Vec::new();
+    let first_marked = readings.iter().position(|r| r.baseline_mark).unwrap_or(0);
     for (i, reading) in readings.iter().enumerate() {
+        base_idx = match &frozen {
+            Some(b) => b.clone(),
+            None => baseline_indices_at(readings, options, i),
+        };
         // Causal baseline: baseline readings up to now; marked readings count even when later.
         let usable: Vec<&ReadingIndicators> = base_idx
             .iter()
@@ -121,22 +178,38 @@ pub fn assess_life(readings: &[LifeReading], options: &StageOptions) -> Vec<Stag
         let baseline = Baseline::from_readings(&usable);
         let raw = evaluate::evaluate(&reading.indicators, &baseline, &history);
         history.update(&reading.indicators, &raw);
-        // Ratchet: a stage seen in `confirm` consecutive readings becomes the floor.
-        let run_min = calls
+        // Confirmation and hold over the trailing window (in time).
+        let j0 = window_start(readings, i, options.confirm_fraction);
+        let window: Vec<u8> = calls[j0..i]
             .iter()
-            .rev()
-            .take(confirm - 1)
             .map(|c| c.raw_stage)
             .chain(std::iter::once(raw.stage))
-            .min()
-            .unwrap_or(raw.stage);
+            .collect();
+        let share = |s: u8| window.iter().filter(|&&w| w >= s).count() as f64 / window.len() as f64;
         // Readings before the baseline (when the analyst marks later ones) do not set the floor.
-        let first_base = base_idx.first().copied().unwrap_or(0);
-        let confirmed = i >= first_base && i + 1 >= first_base + confirm;
-        if confirmed {
-            floor = floor.max(run_min);
+        let may_confirm = i > j0 && i >= first_marked;
+        let mut confirmed_now = 0;
+        if may_confirm {
+            confirmed_now = (1..=raw.stage)
+                .rev()
+                .find(|&s| share(s) >= options.confirm_share)
+                .unwrap_or(0);
+            floor = floor.max(confirmed_now);
         }
-        let stage = raw.stage.max(floor);
+        if floor > 0 && frozen.is_none() && !marked {
+            frozen = Some(base_idx.clone());
+        }
+        // Hold: the highest stage shown within the trailing window proper (no extension to the
+        // reading before, so a lone spike on a sparse route is not carried to the next reading).
+        let t_from =
+            reading.t_s - options.hold_fraction.max(0.0) * (reading.t_s - readings[0].t_s).max(0.0);
+        let held = calls[..i]
+            .iter()
+            .filter(|c| c.t_s >= t_from)
+            .map(|c| c.raw_stage)
+            .max()
+            .unwrap_or(0);
+        let stage = raw.stage.max(floor).max(held);
         let mut evidence = raw.evidence;
         let mut confidence = raw.confidence;
         let location = if stage > 0 && matches!(raw.location, Location::None) {
@@ -145,11 +218,19 @@ pub fn assess_life(readings: &[LifeReading], options: &StageOptions) -> Vec<Stag
             raw.location
         };
         if stage > raw.stage {
-            evidence.push(format!(
-                "Held at stage {stage}: it was seen in {confirm} consecutive readings earlier in this life, and damage does not heal."
-            ));
+            if stage <= floor {
+                evidence.push(format!(
+                    "Held at stage {stage}: it was confirmed earlier in this life (most readings over a stretch of {:.0} % of the life seen so far), and damage does not heal.",
+                    100.0 * options.confirm_fraction
+                ));
+            } else {
+                evidence.push(format!(
+                    "Held at stage {stage}: a reading within the last {:.0} % of the life seen so far showed it (hysteresis in time).",
+                    100.0 * options.hold_fraction
+                ));
+            }
             confidence = confidence.min(0.7);
-        } else if stage > 0 && confirmed && run_min >= stage {
+        } else if stage > 0 && confirmed_now >= stage {
             confidence = (confidence + 0.1).min(0.95);
         }
         calls.push(StageCall {
@@ -163,8 +244,13 @@ pub fn assess_life(readings: &[LifeReading], options: &StageOptions) -> Vec<Stag
             limits: raw.limits,
             relative: raw.relative,
             damage_index_db: raw.damage_index_db,
-            in_baseline: base_idx.contains(&i),
+            in_baseline: false,
         });
+    }
+    for &j in &base_idx {
+        if let Some(c) = calls.get_mut(j) {
+            c.in_baseline = true;
+        }
     }
     calls
 }

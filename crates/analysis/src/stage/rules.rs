@@ -25,13 +25,121 @@ pub struct Rule {
 
 const PRACTICE: &str = "common practice, no source";
 
-/// Readings at the start of a life that form its baseline when the analyst marks none.
-pub const BASELINE_READINGS: Rule = Rule {
-    id: "baseline_readings",
+/// Share of the life observed so far whose readings form the baseline when none is marked.
+pub const BASELINE_FRACTION: Rule = Rule {
+    id: "baseline_fraction",
+    value: 0.2,
+    unit: "share of the observed span",
+    meaning: "readings within the first fifth of the time the life has been observed (at least the first reading) form its baseline (median of each indicator); frozen once damage is first confirmed; the same at any reading density or time scale",
+    source: "robust by construction (a median over a share of the life's own time); checked on the simulator histories and the six PRONOSTIA learning runs (density test in crates/pipeline/tests)",
+};
+
+/// Trailing window of the confirmation, as a share of the life observed so far.
+pub const CONFIRM_FRACTION: Rule = Rule {
+    id: "confirm_fraction",
+    value: 0.15,
+    unit: "share of the observed span",
+    meaning: "a stage is confirmed (becomes the floor of later calls) over a trailing window of this share of the time observed so far, always at least this reading and the one before",
+    source: "choice of this tool, in time so that reading density does not change it: long enough to hold several readings at every density seen (0.05 let one-a-minute data confirm on runs that every-5th data did not: PRONOSTIA density agreement 90 %); on a monthly route in its first year it is the former two consecutive readings; checked on the simulator histories and PRONOSTIA (density tests)",
+};
+
+/// Trailing hold window (hysteresis), as a share of the life observed so far.
+pub const HOLD_FRACTION: Rule = Rule {
+    id: "hold_fraction",
+    value: 0.02,
+    unit: "share of the observed span",
+    meaning: "a stage shown by any reading within this trailing share of the time observed so far is held (hysteresis in time: no 3-4 flipping between neighbouring readings); on a monthly route it holds nothing beyond the reading itself",
+    source: "choice of this tool; checked on the simulator histories and PRONOSTIA (density and flip tests)",
+};
+
+/// Share of the readings in the confirmation window that must show a stage.
+pub const CONFIRM_SHARE: Rule = Rule {
+    id: "confirm_share",
+    value: 0.6,
+    unit: "share of readings",
+    meaning: "a stage is confirmed when at least this share of the readings in the trailing window show it (with two readings: both)",
+    source: "choice of this tool (a majority, robust to single dropouts in dense data); checked on the simulator histories and PRONOSTIA",
+};
+
+/// Standard deviations over the baseline scatter that mark the first prediction time.
+pub const FPT_SIGMA: Rule = Rule {
+    id: "fpt_sigma",
     value: 3.0,
-    unit: "readings",
-    meaning: "first readings of a life taken as its baseline (median of each indicator)",
-    source: PRACTICE,
+    unit: "standard deviations of the baseline damage index",
+    meaning: "first prediction time: the damage index above baseline mean + this many standard deviations",
+    source: "3-sigma rule common in the PRONOSTIA and XJTU-SY remaining-life literature (from memory)",
+};
+
+/// Smallest FPT threshold.
+pub const FPT_MIN_DB: Rule = Rule {
+    id: "fpt_min_db",
+    value: 2.0,
+    unit: "dB over baseline",
+    meaning: "the FPT threshold is at least this, so a very quiet baseline does not start the model on scatter",
+    source: "tuned (the former trend floor); checked on the simulator and PRONOSTIA",
+};
+
+/// Share of the readings since a candidate FPT that must stay above the threshold.
+pub const FPT_SHARE: Rule = Rule {
+    id: "fpt_share",
+    value: 0.6,
+    unit: "share of readings",
+    meaning: "the FPT is the earliest reading above the threshold such that this share of the readings since (two at least) are above too",
+    source: "choice of this tool (a majority; robust to density)",
+};
+
+/// Smallest excess amplitude ratio taken into the logarithm of the degradation model.
+pub const EXCESS_MIN: Rule = Rule {
+    id: "excess_floor",
+    value: 0.05,
+    unit: "amplitude ratio - 1",
+    meaning: "readings after the FPT that fall back to the baseline enter the model as this small excess, not as minus infinity",
+    source: "choice of this tool",
+};
+
+/// Smallest residual noise of the degradation model.
+pub const MODEL_NOISE_MIN: Rule = Rule {
+    id: "model_noise_floor",
+    value: 0.3,
+    unit: "ln(excess amplitude ratio)",
+    meaning: "noise of the model is the fit's residual standard deviation, at least this (a few readings must not make it certain)",
+    source: "choice of this tool",
+};
+
+/// Prior mean of the degradation rate.
+pub const PRIOR_RATE_MEAN: Rule = Rule {
+    id: "prior_rate_mean",
+    value: 34.24,
+    unit: "ln(excess amplitude ratio) per healthy span",
+    meaning: "prior mean slope of the log excess amplitude after the FPT, time in units of the life's healthy span (FPT - first reading); grease-fed, divided by oil_factor for oil-fed",
+    source: "fitted on the six PRONOSTIA learning runs (crates/pipeline/tests/stage_femto.rs checks it against them); the leave-one-out test refits it without the held-out run",
+};
+
+/// Prior standard deviation of the degradation rate.
+pub const PRIOR_RATE_SD: Rule = Rule {
+    id: "prior_rate_sd",
+    value: 48.71,
+    unit: "ln(excess amplitude ratio) per healthy span",
+    meaning: "prior standard deviation of that slope (at least half the mean)",
+    source: "fitted on the six PRONOSTIA learning runs",
+};
+
+/// Damage index at end of life.
+pub const EOL_DB: Rule = Rule {
+    id: "eol_db",
+    value: 20.23,
+    unit: "dB over baseline",
+    meaning: "end-of-life level of the damage index for the end-of-life projection (median of the highest index each finished life reached)",
+    source: "fitted on the six PRONOSTIA learning runs (their end of life is the 20 g stop of the rig)",
+};
+
+/// Remaining life before any damage growth, as a multiple of the span observed so far.
+pub const PRIOR_SURVIVAL_RATIO: Rule = Rule {
+    id: "prior_survival_ratio",
+    value: 0.0499,
+    unit: "× span observed so far",
+    meaning: "without damage growth the end-of-life guess is this multiple of the time observed so far: a labelled prior, never a due date (median of (end - FPT)/(FPT - start) over the finished lives); with finished lives of the same population the remaining life that best fits the second half of their lives is used instead",
+    source: "fitted on the six PRONOSTIA learning runs",
 };
 
 /// A change of this many dB over baseline counts as a real rise (a doubling of amplitude).
@@ -169,42 +277,6 @@ pub const KURTOSIS_FALLBACK: Rule = Rule {
     source: PRACTICE,
 };
 
-/// Consecutive readings at a stage before the call holds there (a ratchet against single spikes).
-pub const CONFIRM_READINGS: Rule = Rule {
-    id: "confirm_readings",
-    value: 2.0,
-    unit: "readings",
-    meaning: "a stage seen in this many consecutive readings becomes the floor of later calls",
-    source: PRACTICE,
-};
-
-/// Readings needed (after the baseline) to fit a trend.
-pub const TREND_MIN_READINGS: Rule = Rule {
-    id: "trend_min_readings",
-    value: 4.0,
-    unit: "readings",
-    meaning: "fewer readings in the trend window: fall back on stage-duration ranges",
-    source: PRACTICE,
-};
-
-/// Readings in the trend window (the most recent ones).
-pub const TREND_WINDOW: Rule = Rule {
-    id: "trend_window",
-    value: 8.0,
-    unit: "readings",
-    meaning: "the trend is fitted to at most this many most recent readings",
-    source: "tuned",
-};
-
-/// Damage index below which readings are flat noise and not used to fit growth.
-pub const TREND_FLOOR_DB: Rule = Rule {
-    id: "trend_floor_db",
-    value: 2.0,
-    unit: "dB over baseline",
-    meaning: "growth is fitted only once the damage index has left the baseline scatter",
-    source: "tuned",
-};
-
 /// Two-sided coverage of the prediction interval.
 pub const INTERVAL_COVERAGE: Rule = Rule {
     id: "interval_coverage",
@@ -324,7 +396,19 @@ pub const STAGE3_LIFE_FRACTION_MAX: Rule = Rule {
 
 /// The whole table, for display and documentation.
 pub const RULES: &[Rule] = &[
-    BASELINE_READINGS,
+    BASELINE_FRACTION,
+    CONFIRM_FRACTION,
+    CONFIRM_SHARE,
+    HOLD_FRACTION,
+    FPT_SIGMA,
+    FPT_MIN_DB,
+    FPT_SHARE,
+    EXCESS_MIN,
+    MODEL_NOISE_MIN,
+    PRIOR_RATE_MEAN,
+    PRIOR_RATE_SD,
+    EOL_DB,
+    PRIOR_SURVIVAL_RATIO,
     RISE_DB,
     HIGH_BAND_MIN_HZ,
     ENVELOPE_TONE_DB,
@@ -340,10 +424,6 @@ pub const RULES: &[Rule] = &[
     ONE_X_STAGE4_DB,
     TONE_FADE_DB,
     KURTOSIS_FALLBACK,
-    CONFIRM_READINGS,
-    TREND_MIN_READINGS,
-    TREND_WINDOW,
-    TREND_FLOOR_DB,
     INTERVAL_COVERAGE,
     STAGE1_DAYS_MIN,
     STAGE1_DAYS_MAX,
