@@ -75,8 +75,12 @@ struct Scored {
     peer: String,
 }
 
-fn run_corpus() -> Vec<Scored> {
-    let corpus = hard_corpus(CORPUS_SIZE, CORPUS_SEED).unwrap();
+fn run_corpus(size: usize, seed: u64, keep: &dyn Fn(&CorpusReading) -> bool) -> Vec<Scored> {
+    let corpus: Vec<CorpusReading> = hard_corpus(size, seed)
+        .unwrap()
+        .into_iter()
+        .filter(|r| keep(r))
+        .collect();
     let mut engine = SpectrumEngine::new();
     let opts = DiagnoseOptions::default();
     println!(
@@ -109,10 +113,11 @@ fn run_corpus() -> Vec<Scored> {
                 d.demodulation_band_hz[1],
                 d.findings
                     .iter()
-                    .map(|f| format!("{}={:.0}", f.kind.tag(), f.score_db))
+                    .map(|f| format!("{}={:.0}/{}h{}s", f.kind.tag(), f.score_db, f.harmonics, f.sidebands))
                     .collect::<Vec<_>>()
                     .join(" ")
             );
+            println!("       {} | {}", d.band_choice.reason, d.location.reason);
             Scored {
                 stage: r.condition.stage.get(),
                 truth: truth(r),
@@ -123,13 +128,13 @@ fn run_corpus() -> Vec<Scored> {
         .collect()
 }
 
-fn confidence(_d: &Diagnosis) -> f64 {
-    0.0
+fn confidence(d: &Diagnosis) -> f64 {
+    d.confidence
 }
 
 #[test]
 fn corpus_location_beats_fixed_band_peer() {
-    let scored = run_corpus();
+    let scored = run_corpus(CORPUS_SIZE, CORPUS_SEED, &|_| true);
     // (stage, truth) -> (readings, ours right, peer right, ours wrong race, peer wrong race)
     let mut table: BTreeMap<(u8, &str), [u32; 5]> = BTreeMap::new();
     for s in &scored {
@@ -158,5 +163,65 @@ fn corpus_location_beats_fixed_band_peer() {
     println!(
         "stages 2-3: ours {ours_right}/{faulty}, peer {peer_right}/{faulty}; healthy none: ours {ours_none}/{healthy}, peer {peer_none}/{healthy}"
     );
-    assert!(faulty > 0 && healthy > 0);
+    let ours_wrong = sum(&|s| {
+        (2..=3).contains(&s.stage) && s.ours != s.truth && s.ours != "none" && s.ours != "unclear"
+    });
+    let any_called_on_healthy = sum(&|s| s.stage == 0 && s.ours != "none");
+    println!(
+        "stages 2-3 wrong-location calls: ours {ours_wrong}; healthy readings not none: {any_called_on_healthy}"
+    );
+    assert!(faulty == 96 && healthy == 36, "corpus layout changed");
+    // Figures measured on this corpus (seed 2026): ours 88/96, peer 45/96, healthy 35/36 none, one wrong
+    // location at stages 2-3. The issue's targets (>= 95 % right, every healthy reading none) are not
+    // met yet; these assertions hold what was achieved so that a regression fails.
+    assert!(ours_right >= 88, "ours {ours_right}/{faulty}");
+    assert!(
+        ours_right >= peer_right + 30,
+        "ours {ours_right} must beat the fixed-band peer {peer_right} by a clear margin"
+    );
+    assert!(ours_none >= 35, "healthy none: {ours_none}/{healthy}");
+    assert!(
+        ours_wrong <= 1,
+        "wrong-location calls at stages 2-3: {ours_wrong}"
+    );
+}
+
+// Failure mode 1 of the issue: a ball train modulated at the cage rate was called "cage". On a second
+// corpus draw, no stage 2-3 rolling-element reading may be called cage.
+#[test]
+fn ball_train_modulated_at_ftf_is_not_called_cage() {
+    let scored = run_corpus(96, 77, &|r| {
+        r.condition.stage.get() >= 2
+            && r.condition.stage.get() <= 3
+            && r.condition.fault == spallcast_simulate::FaultKind::RollingElement
+    });
+    assert!(scored.len() >= 12);
+    let cage = scored.iter().filter(|s| s.ours == "cage").count();
+    let right = scored.iter().filter(|s| s.ours == s.truth).count();
+    println!(
+        "rolling element: {right}/{} right, {cage} called cage",
+        scored.len()
+    );
+    assert_eq!(cage, 0);
+}
+
+// Failure mode 2 of the issue: random knocks or a low structural band took the band and a clear
+// defect was reported "none". On a second corpus draw, stage-3 readings with knocks: ours must name the
+// right location on more of them than the fixed-band peer, and call "none" on fewer.
+#[test]
+fn knocks_do_not_hide_a_clear_defect() {
+    let scored = run_corpus(192, 78, &|r| {
+        r.condition.stage.get() == 3 && r.extras.knock_rate_hz > 0.0
+    });
+    assert!(scored.len() >= 8, "{}", scored.len());
+    let count = |f: &dyn Fn(&Scored) -> bool| scored.iter().filter(|s| f(s)).count();
+    let ours_right = count(&|s| s.ours == s.truth);
+    let peer_right = count(&|s| s.peer == s.truth);
+    let ours_none = count(&|s| s.ours == "none");
+    let peer_none = count(&|s| s.peer == "none");
+    println!(
+        "stage 3 with knocks: {} readings; right ours {ours_right} peer {peer_right}; none ours {ours_none} peer {peer_none}",
+        scored.len()
+    );
+    assert!(ours_right > peer_right && ours_none < peer_none);
 }

@@ -178,14 +178,7 @@ fn corpus_reading(index: usize, seed: u64) -> Result<CorpusReading, SimError> {
             rng.random::<f64>() * TAU,
         ];
         add_gear_mesh(
-            &mut x,
-            fs,
-            shaft_hz,
-            gear_teeth,
-            gear_g,
-            depth,
-            &phases,
-            limit,
+            &mut x, fs, shaft_hz, gear_teeth, gear_g, depth, &phases, limit,
         );
     }
 
