@@ -268,8 +268,8 @@ pub fn diagnose(
 /// factors in orders. Reuses `engine`'s FFT plans and windows.
 ///
 /// The envelope band is the options' band, or the candidate band (fast-kurtogram cells and fixed wide
-/// bands, see [`BandChoice`]) whose envelope shows a fault family most strongly, after automatic
-/// cepstral pre-whitening when strong discrete lines are present. The location follows each family's
+/// bands, see [`BandChoice`]) whose envelope shows a fault family most strongly, after removing
+/// discrete lines when strong shaft-synchronous tones are present (cepstral pre-whitening on request). The location follows each family's
 /// physics with a margin over the runner-up, else "unclear" (see [`LocationCall`] and
 /// [`rules::LOCATION_RULES`]); clipped or silent recordings get "none".
 ///
