@@ -47,10 +47,11 @@ mod testutil;
 pub mod window;
 
 pub use bands::{BandEnergy, BandScale, BandSpec, band_energies, default_bands};
+pub use diagnose::rules as location_rules;
 pub use diagnose::{
-    AccelUnit, DiagnoseOptions, Diagnosis, DisplayUnits, DisplayValues, Finding, Indicators,
-    StageIndicators, VelocityUnit, acceleration_spectrum, diagnose, diagnose_with,
-    envelope_spectrum, stage_indicators_flat, velocity_spectrum,
+    AccelUnit, BandChoice, DiagnoseOptions, Diagnosis, DisplayUnits, DisplayValues, Finding,
+    Indicators, LocationCall, StageIndicators, VelocityUnit, acceleration_spectrum, diagnose,
+    diagnose_with, envelope_spectrum, stage_indicators_flat, velocity_spectrum,
 };
 pub use indicators::{MachineGroup, Support, Zone};
 pub use kinematics::{

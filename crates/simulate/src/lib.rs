@@ -19,12 +19,14 @@
 #![forbid(unsafe_code)]
 #![warn(missing_docs)]
 
+mod corpus;
 mod demo;
 mod error;
 mod model;
 mod progression;
 mod signal;
 
+pub use corpus::{CorpusExtras, CorpusReading, hard_corpus};
 pub use demo::{
     BAD_RECORDING_SAMPLES, DemoSummary, PLANT_TOML, SCENARIO_TOML, TruthRow, demo_dir_default,
     demo_truth_from_str, generate_demo_routes, generate_demo_routes_from_str,

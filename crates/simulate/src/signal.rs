@@ -340,7 +340,7 @@ impl Biquad {
 /// transmission path passes no static or low-frequency content). Below the mode the response
 /// falls as f³, so a stage-2 impact train leaves no discrete defect lines in the low-frequency
 /// spectrum. Peak-normalised to 1 and truncated once decayed below about 1e-3.
-fn ring_kernel(r: Resonance, fs: f64) -> Vec<f64> {
+pub(crate) fn ring_kernel(r: Resonance, fs: f64) -> Vec<f64> {
     let decay = r.damping_ratio * TAU * r.freq_hz;
     let len = ((1.2 * 1000.0_f64.ln() / decay) * fs).ceil() as usize + 8;
     let mut k = vec![0.0; len];

@@ -301,7 +301,19 @@ fn report(path: &Path, rpm: f64, d: &Diagnosis) -> String {
             x.fault, x.matched_hz, x.score_db, x.harmonics, x.sidebands
         );
     }
-    let _ = writeln!(s, "Diagnosis  {}", d.diagnosis);
+    let _ = writeln!(s, "  band choice: {}", d.band_choice.reason);
+    let _ = writeln!(
+        s,
+        "Diagnosis  {} (confidence {:.2}{})",
+        d.diagnosis,
+        d.confidence,
+        if let [a, b] = d.location.candidates.as_slice() {
+            format!("; candidates {a} / {b}")
+        } else {
+            String::new()
+        }
+    );
+    let _ = writeln!(s, "  why: {}", d.location.reason);
     let _ = writeln!(
         s,
         "Advisory only: isolate and lock out the machine before any work; follow local codes and licensed practice."

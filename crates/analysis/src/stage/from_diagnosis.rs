@@ -44,6 +44,10 @@ impl ReadingIndicators {
                 .find(|b| b.name == name && b.available)
                 .map(|b| b.rms_g)
         };
+        // Envelope tones count only for the location the diagnosis names: the band search looks at
+        // many bands, and the location call's margin and band corroboration are what separate a defect
+        // family from a chance line ("unclear" and "none" leave the stage to the other indicators).
+        let backed = |kind: FaultKind| d.diagnosis == kind.label();
         let tones = match tones {
             ToneUse::Ignore => None,
             ToneUse::Use => Some(FaultKind::ALL.map(|kind| {
@@ -51,8 +55,8 @@ impl ReadingIndicators {
                     .iter()
                     .find(|f| f.kind == kind)
                     .map_or_else(ToneEvidence::default, |f| ToneEvidence {
-                        envelope_score_db: f.score_db,
-                        envelope_harmonics: f.harmonics,
+                        envelope_score_db: if backed(kind) { f.score_db } else { 0.0 },
+                        envelope_harmonics: if backed(kind) { f.harmonics } else { 0 },
                         spectrum_harmonics: f.linear_harmonics,
                         spectrum_sidebands: f.linear_sidebands,
                     })

@@ -2,99 +2,30 @@
 
 use serde::{Deserialize, Serialize};
 
+mod band;
+mod locate;
+mod plots;
+pub mod rules;
+mod units;
+
+pub use band::BandChoice;
+pub use locate::LocationCall;
+pub use plots::{acceleration_spectrum, envelope_spectrum, velocity_spectrum};
+pub use units::{AccelUnit, DisplayUnits, VelocityUnit};
+
 use crate::AnalysisError;
 use crate::bands::{BandEnergy, band_energies, default_bands};
-use crate::envelope::{KurtogramLimits, PreparedSignal, fast_kurtogram, squared_envelope_spectrum};
+use crate::envelope::{PreparedSignal, squared_envelope_spectrum};
 use crate::findings::{FamilyScore, SearchParams, score_family};
 use crate::indicators::{self, MachineGroup, Support, Zone, iso_velocity_band_hz, iso_zone};
 use crate::kinematics::{CheckFactors, FaultFactors, FaultFrequencies, FaultKind};
 use crate::spectrum::{
-    Detector, PowerSpectrum, Quantity, STANDARD_GRAVITY, Spectrum, SpectrumEngine, SpectrumUnits,
-    WelchParams, band_mean_square, check_finite, check_rate, conversion_from_g,
+    Detector, PowerSpectrum, Quantity, Spectrum, SpectrumEngine, SpectrumUnits, WelchParams,
+    band_mean_square, check_finite, check_rate, conversion_from_g,
 };
-use crate::window::Window;
 
 /// Fewest samples [`diagnose`] accepts.
 pub const MIN_SAMPLES: usize = 1024;
-/// Envelope score (dB over the local floor) a fault must reach to be named.
-pub const DECISION_DB: f64 = 12.0;
-/// Harmonics (of the envelope comb) a fault must show to be named.
-pub const DECISION_HARMONICS: u32 = 2;
-
-/// Acceleration display unit.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, Default)]
-#[serde(rename_all = "snake_case")]
-pub enum AccelUnit {
-    /// Standard gravity units.
-    #[default]
-    G,
-    /// Metres per second squared.
-    MetresPerSecond2,
-}
-
-/// Velocity display unit.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, Default)]
-#[serde(rename_all = "snake_case")]
-pub enum VelocityUnit {
-    /// Millimetres per second.
-    #[default]
-    MmPerS,
-    /// Inches per second.
-    InPerS,
-}
-
-impl AccelUnit {
-    /// Symbol for reports.
-    pub fn symbol(self) -> &'static str {
-        match self {
-            Self::G => "g",
-            Self::MetresPerSecond2 => "m/s²",
-        }
-    }
-    fn quantity(self) -> Quantity {
-        match self {
-            Self::G => Quantity::AccelerationG,
-            Self::MetresPerSecond2 => Quantity::AccelerationMS2,
-        }
-    }
-    fn convert_g(self, v: f64) -> f64 {
-        match self {
-            Self::G => v,
-            Self::MetresPerSecond2 => v * STANDARD_GRAVITY,
-        }
-    }
-}
-
-impl VelocityUnit {
-    /// Symbol for reports.
-    pub fn symbol(self) -> &'static str {
-        match self {
-            Self::MmPerS => "mm/s",
-            Self::InPerS => "in/s",
-        }
-    }
-    fn quantity(self) -> Quantity {
-        match self {
-            Self::MmPerS => Quantity::VelocityMmS,
-            Self::InPerS => Quantity::VelocityInS,
-        }
-    }
-    fn convert_mm_s(self, v: f64) -> f64 {
-        match self {
-            Self::MmPerS => v,
-            Self::InPerS => v / 25.4,
-        }
-    }
-}
-
-/// Units used for display values and plotted spectra (the stable JSON fields stay in g and mm/s).
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize, Default)]
-pub struct DisplayUnits {
-    /// Acceleration unit.
-    pub acceleration: AccelUnit,
-    /// Velocity unit.
-    pub velocity: VelocityUnit,
-}
 
 /// Options of [`diagnose`].
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
@@ -242,8 +173,17 @@ pub struct Diagnosis {
     pub prewhitened: bool,
     /// One finding per fault location, strongest envelope score first.
     pub findings: Vec<Finding>,
-    /// Most likely fault location, or "none".
+    /// Most likely fault location, "unclear" (see `location`) or "none".
     pub diagnosis: String,
+    /// 0–1 support for `diagnosis` (see [`LocationCall::confidence`]).
+    #[serde(default)]
+    pub confidence: f64,
+    /// The location decision with its candidates and reason.
+    #[serde(default)]
+    pub location: LocationCall,
+    /// How the demodulation band was chosen.
+    #[serde(default)]
+    pub band_choice: BandChoice,
     /// Scalars for stage assessment.
     pub stage_indicators: StageIndicators,
 }
@@ -327,10 +267,11 @@ pub fn diagnose(
 /// Diagnoses one reading: acceleration `samples_g` in g at `sample_rate_hz`, shaft speed in Hz, fault
 /// factors in orders. Reuses `engine`'s FFT plans and windows.
 ///
-/// The envelope band comes from the fast kurtogram (bands at least 3.5 × the highest defect rate wide,
-/// lower edge at least 3 × that rate) unless the options give one. A fault location is named when its
-/// envelope score reaches [`DECISION_DB`] with at least [`DECISION_HARMONICS`] harmonics; the strongest
-/// such location wins, otherwise the diagnosis is "none".
+/// The envelope band is the options' band, or the candidate band (fast-kurtogram cells and fixed wide
+/// bands, see [`BandChoice`]) whose envelope shows a fault family most strongly, after removing
+/// discrete lines when strong shaft-synchronous tones are present (cepstral pre-whitening on request). The location follows each family's
+/// physics with a margin over the runner-up, else "unclear" (see [`LocationCall`] and
+/// [`rules::LOCATION_RULES`]); clipped or silent recordings get "none".
 ///
 /// # Errors
 /// [`AnalysisError`] for a bad sample rate, shaft speed (must be below Nyquist), factors, a user band
@@ -367,14 +308,8 @@ pub fn diagnose_with(
         iso20816_zone: iso_zone(velocity_rms_mm_s, options.iso_group, options.iso_support),
     };
 
-    // Envelope.
-    let sig = PreparedSignal::new(engine, &centred, fs, options.prewhiten)?;
-    let max_rate = freqs
-        .bpfo
-        .max(freqs.bpfi)
-        .max(2.0 * freqs.bsf)
-        .max(freqs.ftf);
-    let (band, source, sk) = if let Some((lo, hi)) = options.demodulation_band_hz {
+    // Envelope: the user's band, or the candidate band whose envelope shows a fault family best.
+    let (choice, ses) = if let Some((lo, hi)) = options.demodulation_band_hz {
         if !(lo.is_finite() && hi.is_finite() && lo >= 0.0 && hi > lo && hi <= fs / 2.0) {
             return Err(AnalysisError::BadBand {
                 lo_hz: lo,
@@ -385,17 +320,29 @@ pub fn diagnose_with(
                 ),
             });
         }
-        ([lo, hi], "user", 0.0)
-    } else {
-        let limits = KurtogramLimits {
-            max_level: 6,
-            min_bandwidth_hz: 3.5 * max_rate,
-            min_lower_edge_hz: 3.0 * max_rate,
+        let sig = PreparedSignal::new(engine, &centred, fs, options.prewhiten)?;
+        let ses = squared_envelope_spectrum(engine, &sig, lo, hi)?;
+        let choice = BandChoice {
+            band_hz: [lo, hi],
+            source: "user".to_owned(),
+            prewhitened: options.prewhiten,
+            reason: "given by the user".to_owned(),
+            ..BandChoice::default()
         };
-        let kg = fast_kurtogram(engine, &sig, &limits)?;
-        ([kg.best.lo_hz, kg.best.hi_hz], "kurtogram", kg.best.sk)
+        (choice, ses)
+    } else {
+        let (choice, _sig, ses) = band::choose_band(
+            engine,
+            &centred,
+            fs,
+            &freqs,
+            &psd,
+            &options.search,
+            options.prewhiten,
+        )?;
+        (choice, ses)
     };
-    let ses = squared_envelope_spectrum(engine, &sig, band[0], band[1])?;
+    let band = choice.band_hz;
 
     let g_units = SpectrumUnits {
         quantity: Quantity::AccelerationG,
@@ -413,10 +360,12 @@ pub fn diagnose_with(
         })
         .collect();
     findings.sort_by(|a, b| b.score_db.total_cmp(&a.score_db));
-    let diagnosis = findings
-        .iter()
-        .find(|f| f.score_db >= DECISION_DB && f.harmonics >= DECISION_HARMONICS)
-        .map_or_else(|| "none".to_owned(), |f| f.fault.clone());
+    let corroborating = (choice.source != "user").then_some(choice.corroborating_bands);
+    let location = locate::locate(
+        &findings,
+        recording_problem(&centred, &indicators).as_deref(),
+        corroborating,
+    );
 
     let bands = band_energies(&psd, &default_bands(fs, &freqs), shaft_hz, fs);
     let defect_band = bands
@@ -466,13 +415,29 @@ pub fn diagnose_with(
         indicators,
         display,
         demodulation_band_hz: band,
-        demodulation_band_source: source.to_owned(),
-        demodulation_band_sk: sk,
-        prewhitened: options.prewhiten,
+        demodulation_band_source: choice.source.clone(),
+        demodulation_band_sk: choice.sk,
+        prewhitened: choice.prewhitened,
         findings,
-        diagnosis,
+        diagnosis: location.diagnosis.clone(),
+        confidence: location.confidence,
+        location,
+        band_choice: choice,
         stage_indicators,
     })
+}
+
+/// Why a recording cannot carry a location: silent (no signal) or clipped (flat-topped at its
+/// extreme, [`rules::CLIPPED_FRACTION`]). `None` when usable.
+fn recording_problem(centred: &[f64], ind: &Indicators) -> Option<String> {
+    if !(ind.accel_rms_g > 1e-9 && ind.accel_peak_g > 0.0) {
+        return Some("the recording is silent (no signal)".to_owned());
+    }
+    let top = ind.accel_peak_g * (1.0 - 1e-6);
+    let at_top = centred.iter().filter(|v| v.abs() >= top).count();
+    let need = (rules::CLIPPED_FRACTION.value * centred.len() as f64).max(8.0);
+    (at_top as f64 >= need)
+        .then(|| format!("the recording is clipped ({at_top} samples at its largest value)"))
 }
 
 fn finding(
@@ -545,307 +510,5 @@ pub fn stage_indicators_flat(d: &Diagnosis) -> Vec<(String, f64)> {
     out
 }
 
-/// Averaged acceleration amplitude spectrum (peak detector, flat-top window so lines read true) for
-/// plots, with the line spacing [`diagnose`] uses.
-///
-/// # Errors
-/// Bad sample rate or shaft speed, non-finite samples, fewer than [`MIN_SAMPLES`] samples.
-pub fn acceleration_spectrum(
-    engine: &mut SpectrumEngine,
-    samples_g: &[f64],
-    fs: f64,
-    shaft_hz: f64,
-    unit: AccelUnit,
-) -> Result<Spectrum, AnalysisError> {
-    let seg = plot_segment(samples_g, fs, shaft_hz)?;
-    engine.amplitude_spectrum(
-        samples_g,
-        fs,
-        seg,
-        Window::FlatTop,
-        SpectrumUnits {
-            quantity: unit.quantity(),
-            detector: Detector::Peak,
-        },
-        0.0,
-    )
-}
-
-/// Averaged velocity amplitude spectrum (RMS detector, flat-top window) for plots; lines below the ISO
-/// band's lower edge (10 Hz, or 2 Hz at or below 600 r/min) are zero.
-///
-/// # Errors
-/// As [`acceleration_spectrum`].
-pub fn velocity_spectrum(
-    engine: &mut SpectrumEngine,
-    samples_g: &[f64],
-    fs: f64,
-    shaft_hz: f64,
-    unit: VelocityUnit,
-) -> Result<Spectrum, AnalysisError> {
-    let seg = plot_segment(samples_g, fs, shaft_hz)?;
-    let low = iso_velocity_band_hz(shaft_hz).0;
-    engine.amplitude_spectrum(
-        samples_g,
-        fs,
-        seg,
-        Window::FlatTop,
-        SpectrumUnits {
-            quantity: unit.quantity(),
-            detector: Detector::Rms,
-        },
-        low,
-    )
-}
-
-fn plot_segment(samples_g: &[f64], fs: f64, shaft_hz: f64) -> Result<usize, AnalysisError> {
-    check_rate(fs)?;
-    if !(shaft_hz.is_finite() && shaft_hz > 0.0) {
-        return Err(AnalysisError::BadShaftSpeed(shaft_hz));
-    }
-    if samples_g.len() < MIN_SAMPLES {
-        return Err(AnalysisError::TooShort {
-            len: samples_g.len(),
-            min: MIN_SAMPLES,
-        });
-    }
-    Ok(linear_segment(samples_g.len(), fs, shaft_hz))
-}
-
-/// Squared envelope spectrum (g², peak) for plots, in `band` or, when `None`, in the kurtogram band
-/// [`diagnose`] would choose. Returns the spectrum and the band used.
-///
-/// # Errors
-/// As [`diagnose`].
-pub fn envelope_spectrum(
-    engine: &mut SpectrumEngine,
-    samples_g: &[f64],
-    fs: f64,
-    freqs: &FaultFrequencies,
-    band: Option<(f64, f64)>,
-    prewhiten: bool,
-) -> Result<(Spectrum, [f64; 2]), AnalysisError> {
-    check_rate(fs)?;
-    if samples_g.len() < MIN_SAMPLES {
-        return Err(AnalysisError::TooShort {
-            len: samples_g.len(),
-            min: MIN_SAMPLES,
-        });
-    }
-    let sig = PreparedSignal::new(engine, samples_g, fs, prewhiten)?;
-    let band = if let Some((lo, hi)) = band {
-        [lo, hi]
-    } else {
-        let max_rate = freqs
-            .bpfo
-            .max(freqs.bpfi)
-            .max(2.0 * freqs.bsf)
-            .max(freqs.ftf);
-        let limits = KurtogramLimits {
-            max_level: 6,
-            min_bandwidth_hz: 3.5 * max_rate,
-            min_lower_edge_hz: 3.0 * max_rate,
-        };
-        let kg = fast_kurtogram(engine, &sig, &limits)?;
-        [kg.best.lo_hz, kg.best.hi_hz]
-    };
-    Ok((
-        squared_envelope_spectrum(engine, &sig, band[0], band[1])?,
-        band,
-    ))
-}
-
 #[cfg(test)]
-mod tests {
-    use super::*;
-    use crate::kinematics::BearingGeometry;
-    use crate::testutil::{Gauss, impulse_train};
-
-    fn cwru_de() -> FaultFactors {
-        // REFERENCES §1.2a (CWRU drive-end geometry).
-        BearingGeometry {
-            rolling_elements: 9,
-            element_diameter: 0.3126,
-            pitch_diameter: 1.537,
-            contact_angle_deg: 0.0,
-        }
-        .factors()
-        .unwrap()
-    }
-
-    // Synthetic outer-race impacts (REFERENCES check 17 construction) at BPFO of 1772 r/min are named
-    // "outer race"; the JSON document carries the contract's keys.
-    #[test]
-    fn synthetic_outer_race_is_named() {
-        let f = cwru_de();
-        let shaft = 1772.0 / 60.0;
-        let (x, fs) = impulse_train(f.bpfo * shaft, 3000.0, 12_000.0, 5.0, 2.0, 21);
-        let d = diagnose(&x, fs, shaft, &f, &DiagnoseOptions::default()).unwrap();
-        assert_eq!(d.diagnosis, "outer race", "{:?}", d.findings);
-        assert!(d.findings[0].harmonics >= 2);
-        let v = serde_json::to_value(&d).unwrap();
-        for k in ["ftf", "bsf", "bpfo", "bpfi"] {
-            assert!(v["fault_frequencies_hz"][k].is_number());
-        }
-        for k in [
-            "accel_rms_g",
-            "accel_peak_g",
-            "crest_factor",
-            "kurtosis",
-            "velocity_rms_mm_s",
-        ] {
-            assert!(v["indicators"][k].is_number(), "{k}");
-        }
-        assert!(v["indicators"]["iso20816_zone"].is_string());
-        assert_eq!(v["demodulation_band_hz"].as_array().unwrap().len(), 2);
-        assert!(v["findings"][0]["score_db"].is_number() && v["findings"][0]["fault"].is_string());
-        let flat = stage_indicators_flat(&d);
-        assert!(flat.windows(2).all(|w| w[0].0 < w[1].0));
-        assert!(
-            flat.iter()
-                .any(|(n, _)| n == "band_bearing_resonance_rms_g")
-        );
-        assert!(
-            !flat.iter().any(|(n, _)| n == "band_ultrasonic_rms_g"),
-            "12 kHz cannot show the ultrasonic band"
-        );
-    }
-
-    // A user band finds an inner-race train (impacts at BPFI, amplitude modulated at 1x). Pre-whitening is
-    // only checked to run: it removes strictly periodic lines, which a jitter-free synthetic train is.
-    #[test]
-    fn synthetic_inner_race_with_user_band_and_prewhitening() {
-        let f = cwru_de();
-        let shaft = 30.0;
-        let (mut x, fs) = impulse_train(f.bpfi * shaft, 3500.0, 12_000.0, 5.0, 1.5, 5);
-        for (i, v) in x.iter_mut().enumerate() {
-            *v *= 1.0 + 0.5 * (std::f64::consts::TAU * shaft * i as f64 / fs).cos();
-        }
-        let opts = DiagnoseOptions {
-            demodulation_band_hz: Some((2500.0, 4500.0)),
-            ..DiagnoseOptions::default()
-        };
-        let d = diagnose(&x, fs, shaft, &f, &opts).unwrap();
-        assert_eq!(d.diagnosis, "inner race", "{:?}", d.findings);
-        assert_eq!(d.demodulation_band_source, "user");
-        let white = diagnose(
-            &x,
-            fs,
-            shaft,
-            &f,
-            &DiagnoseOptions {
-                prewhiten: true,
-                ..opts
-            },
-        )
-        .unwrap();
-        assert!(white.prewhitened && !d.prewhitened);
-    }
-
-    // Gaussian noise (a healthy-baseline stand-in) is "none" for several seeds: the decision threshold
-    // keeps pure noise below the call.
-    #[test]
-    fn gaussian_noise_is_none() {
-        let f = cwru_de();
-        for seed in 1..=6 {
-            let mut g = Gauss::new(seed);
-            let x: Vec<f64> = (0..60_000).map(|_| 0.1 * g.next()).collect();
-            let d = diagnose(&x, 12_000.0, 29.5, &f, &DiagnoseOptions::default()).unwrap();
-            assert_eq!(d.diagnosis, "none", "seed {seed}: {:?}", d.findings);
-            // Gaussian kurtosis is 3 (Pearson), crest factor of 60k Gaussian samples about 4–5.
-            assert!((d.indicators.kurtosis - 3.0).abs() < 0.1);
-        }
-    }
-
-    // Analytic: a 1x velocity sine of 4 mm/s RMS at 25 Hz reads 4 mm/s overall and at 1x, zone C for
-    // group 2 rigid (ISO 10816-3 Table A.2: 2.8 ≤ v < 4.5).
-    #[test]
-    fn velocity_sine_gives_iso_zone() {
-        let fs = 5000.0;
-        let fr = 25.0;
-        let v_peak_mm_s = 4.0 * std::f64::consts::SQRT_2;
-        let a_peak_g = v_peak_mm_s * std::f64::consts::TAU * fr / (STANDARD_GRAVITY * 1000.0);
-        let x: Vec<f64> = (0..50_000)
-            .map(|i| a_peak_g * (std::f64::consts::TAU * fr * i as f64 / fs).cos())
-            .collect();
-        let d = diagnose(&x, fs, fr, &cwru_de(), &DiagnoseOptions::default()).unwrap();
-        assert!(
-            (d.indicators.velocity_rms_mm_s - 4.0).abs() < 0.04,
-            "{}",
-            d.indicators.velocity_rms_mm_s
-        );
-        assert!((d.stage_indicators.one_x_velocity_rms_mm_s - 4.0).abs() < 0.04);
-        assert_eq!(d.indicators.iso20816_zone, Zone::C);
-        let inch = DiagnoseOptions {
-            units: DisplayUnits {
-                velocity: VelocityUnit::InPerS,
-                acceleration: AccelUnit::MetresPerSecond2,
-            },
-            ..DiagnoseOptions::default()
-        };
-        let d2 = diagnose(&x, fs, fr, &cwru_de(), &inch).unwrap();
-        assert!((d2.display.velocity_rms * 25.4 - d.indicators.velocity_rms_mm_s).abs() < 1e-9);
-        assert!((d2.display.accel_rms - d.indicators.accel_rms_g * STANDARD_GRAVITY).abs() < 1e-12);
-    }
-
-    #[test]
-    fn bad_inputs_are_errors() {
-        let f = cwru_de();
-        let x = vec![0.0; 4096];
-        let o = DiagnoseOptions::default();
-        assert!(matches!(
-            diagnose(&x[..100], 1000.0, 10.0, &f, &o),
-            Err(AnalysisError::TooShort { .. })
-        ));
-        assert!(matches!(
-            diagnose(&x, 0.0, 10.0, &f, &o),
-            Err(AnalysisError::BadSampleRate(_))
-        ));
-        assert!(matches!(
-            diagnose(&x, 1000.0, 600.0, &f, &o),
-            Err(AnalysisError::BadShaftSpeed(_))
-        ));
-        let bad = FaultFactors { bpfo: -1.0, ..f };
-        assert!(matches!(
-            diagnose(&x, 1000.0, 10.0, &bad, &o),
-            Err(AnalysisError::BadFactors(_))
-        ));
-        let mut y = x.clone();
-        y[7] = f64::INFINITY;
-        assert!(matches!(
-            diagnose(&y, 1000.0, 10.0, &f, &o),
-            Err(AnalysisError::NonFinite { index: 7 })
-        ));
-        let band = DiagnoseOptions {
-            demodulation_band_hz: Some((400.0, 900.0)),
-            ..o
-        };
-        assert!(matches!(
-            diagnose(&x, 1000.0, 10.0, &f, &band),
-            Err(AnalysisError::BadBand { .. })
-        ));
-    }
-
-    // Plot spectra: a 0.5 g sine at 120 Hz reads 0.5 g peak (flat-top), and its velocity RMS line is
-    // 0.5·9806.65/(2π·120)/√2 mm/s.
-    #[test]
-    fn plot_spectra_read_true() {
-        let fs = 6000.0;
-        let x: Vec<f64> = (0..60_000)
-            .map(|i| 0.5 * (std::f64::consts::TAU * 120.0 * i as f64 / fs).sin())
-            .collect();
-        let mut e = SpectrumEngine::new();
-        let a = acceleration_spectrum(&mut e, &x, fs, 25.0, AccelUnit::G).unwrap();
-        let top = a.values.iter().copied().fold(0.0, f64::max);
-        assert!((20.0 * (top / 0.5).log10()).abs() < 0.1);
-        let v = velocity_spectrum(&mut e, &x, fs, 25.0, VelocityUnit::MmPerS).unwrap();
-        let top = v.values.iter().copied().fold(0.0, f64::max);
-        let want = 0.5 * STANDARD_GRAVITY * 1000.0
-            / (std::f64::consts::TAU * 120.0)
-            / std::f64::consts::SQRT_2;
-        assert!((20.0 * (top / want).log10()).abs() < 0.1);
-        let freqs = cwru_de().at_shaft_hz(25.0);
-        let (env, band) = envelope_spectrum(&mut e, &x, fs, &freqs, None, false).unwrap();
-        assert!(band[1] > band[0] && env.units.quantity == Quantity::SquaredEnvelopeG2);
-    }
-}
+mod tests;

@@ -1,0 +1,109 @@
+//! Every threshold of the band choice and the location call, in one table, each with its physics and
+//! what it was checked on ("sim" = the hardened simulator corpus, `tests/location_corpus.rs`; "CWRU" =
+//! the 53 CWRU 12 kHz drive-end records, `tests/cwru.rs`).
+
+pub use crate::stage::rules::Rule;
+
+/// A family is "present" at this envelope score.
+pub const PRESENT_DB: Rule = Rule {
+    id: "location_present_db",
+    value: 12.0,
+    unit: "dB over envelope background",
+    meaning: "a fault family at least this far above the local envelope-spectrum floor (mean of its two strongest of the first three harmonics) is present",
+    source: "unchanged from before; pure Gaussian noise stays below it (unit test, 6 seeds); checked on sim (healthy none) and CWRU 97",
+};
+
+/// Harmonics a present family needs.
+pub const PRESENT_HARMONICS: Rule = Rule {
+    id: "location_present_harmonics",
+    value: 2.0,
+    unit: "harmonics at 10 dB",
+    meaning: "a periodic defect gives a comb, not a single line: at least two harmonics must stand 10 dB over their floor",
+    source: "physics (impact trains are periodic); checked on sim and CWRU",
+};
+
+/// The best family must beat the runner-up by this margin, else "unclear".
+pub const MARGIN_DB: Rule = Rule {
+    id: "location_margin_db",
+    value: 4.0,
+    unit: "dB",
+    meaning: "when the best family's score does not beat the runner-up's by this much, the call is \"unclear\" with both named",
+    source: "envelope line levels over a median floor scatter by a few dB on noise alone (exponential statistics of a squared envelope); checked on sim and CWRU (ball records)",
+};
+
+/// Cage needs this many FTF harmonics.
+pub const CAGE_HARMONICS: Rule = Rule {
+    id: "cage_min_harmonics",
+    value: 3.0,
+    unit: "FTF harmonics at 10 dB",
+    meaning: "a cage defect strikes once per cage turn, a comb of many FTF harmonics; load-zone modulation of a ball train at FTF gives only the first one or two",
+    source: "physics (impulse train versus smooth modulation); checked on sim (ball trains modulated at FTF) and CWRU 185-188",
+};
+
+/// Rolling-element evidence that explains FTF lines as ball-train modulation.
+pub const BALL_TRAIN_DB: Rule = Rule {
+    id: "ball_train_support_db",
+    value: 8.0,
+    unit: "dB",
+    meaning: "when the 2xBSF family scores at least this much, FTF lines are read as the cage carrying a damaged ball through the load zone, not as a cage defect",
+    source: "physics (a faulty ball is modulated at FTF); checked on sim and CWRU 185-188",
+};
+
+/// Remove discrete lines when they hold this share of the power above the defect region.
+pub const TONAL_FRACTION: Rule = Rule {
+    id: "discrete_lines_tonal_fraction",
+    value: 0.2,
+    unit: "share of power",
+    meaning: "shaft-synchronous discrete lines are removed before the band search when such lines 10 dB over their neighbourhood hold at least this share of the power above 3x the highest defect rate (gear mesh and other tones would otherwise mask the impacts)",
+    source: "physics (discrete components mask the random impact signal; REFERENCES 4.3); checked on sim (gear mesh; 0.05 and 0.2 score the same, 88/96) and CWRU (0.2 keeps normal record 97 at none; 0.05 calls it unclear)",
+};
+
+/// A line this many times (amplitude) over its neighbourhood's median is discrete.
+pub const LINE_FACTOR: Rule = Rule {
+    id: "discrete_line_factor",
+    value: 3.162,
+    unit: "amplitude ratio (10 dB)",
+    meaning: "when discrete lines are removed, a line at least 10 dB over the median of the lines around it is brought down to that median (shaft-synchronous lines within max(2 lines, 0.02 %) of a 1x harmonic decide whether to remove)",
+    source: "physics (shaft-locked tones are single lines in a whole-record spectrum; slipping impacts are not); checked on sim (gear mesh) and CWRU",
+};
+
+/// Limit of the squared envelope before its spectrum, in medians.
+pub const ENVELOPE_CAP_MEDIANS: Rule = Rule {
+    id: "envelope_cap_medians",
+    value: 8.0,
+    unit: "medians of the squared envelope",
+    meaning: "the squared envelope is limited to this many medians before its spectrum: Gaussian noise exceeds it 0.4 % of the time, so noise is untouched, while isolated knocks can no longer flood the spectrum",
+    source: "physics (exponential law of a Gaussian squared envelope: P = 2^-8); checked on sim (knocks) and CWRU",
+};
+
+/// Share of samples at the record's extreme value that marks clipping.
+pub const CLIPPED_FRACTION: Rule = Rule {
+    id: "clipped_fraction",
+    value: 1e-3,
+    unit: "share of samples",
+    meaning: "a recording with at least this share (and at least 8) of its samples at its largest absolute value is clipped and gets no location",
+    source: "common practice, no source (a clipped sensor flattens its peaks at the rail); checked on CWRU (no record flagged) and a unit test",
+};
+
+/// Other candidate bands that must show the same family.
+pub const CORROBORATING_BANDS: Rule = Rule {
+    id: "corroborating_bands",
+    value: 1.0,
+    unit: "candidate bands",
+    meaning: "a named location must also be the strongest present family in at least this many other candidate bands, else \"unclear\"",
+    source: "physics (an impact excites a broad resonance region, so its family shows in overlapping and neighbouring bands); checked on sim (no correct call lost) and CWRU (turns the 750-1500 Hz outer-race calls on ball records 185/186 into unclear)",
+};
+
+/// The whole table.
+pub const LOCATION_RULES: [Rule; 10] = [
+    PRESENT_DB,
+    PRESENT_HARMONICS,
+    MARGIN_DB,
+    CORROBORATING_BANDS,
+    CAGE_HARMONICS,
+    BALL_TRAIN_DB,
+    TONAL_FRACTION,
+    LINE_FACTOR,
+    ENVELOPE_CAP_MEDIANS,
+    CLIPPED_FRACTION,
+];

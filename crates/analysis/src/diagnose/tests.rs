@@ -1,0 +1,231 @@
+//! Tests of the one-call diagnosis.
+use super::*;
+use crate::kinematics::BearingGeometry;
+use crate::spectrum::STANDARD_GRAVITY;
+use crate::testutil::{Gauss, impulse_train};
+
+fn cwru_de() -> FaultFactors {
+    // REFERENCES §1.2a (CWRU drive-end geometry).
+    BearingGeometry {
+        rolling_elements: 9,
+        element_diameter: 0.3126,
+        pitch_diameter: 1.537,
+        contact_angle_deg: 0.0,
+    }
+    .factors()
+    .unwrap()
+}
+
+// Synthetic outer-race impacts (REFERENCES check 17 construction) at BPFO of 1772 r/min are named
+// "outer race"; the JSON document carries the contract's keys.
+#[test]
+fn synthetic_outer_race_is_named() {
+    let f = cwru_de();
+    let shaft = 1772.0 / 60.0;
+    let (x, fs) = impulse_train(f.bpfo * shaft, 3000.0, 12_000.0, 5.0, 2.0, 21);
+    let d = diagnose(&x, fs, shaft, &f, &DiagnoseOptions::default()).unwrap();
+    assert_eq!(d.diagnosis, "outer race", "{:?}", d.findings);
+    assert!(d.findings[0].harmonics >= 2);
+    let v = serde_json::to_value(&d).unwrap();
+    for k in ["ftf", "bsf", "bpfo", "bpfi"] {
+        assert!(v["fault_frequencies_hz"][k].is_number());
+    }
+    for k in [
+        "accel_rms_g",
+        "accel_peak_g",
+        "crest_factor",
+        "kurtosis",
+        "velocity_rms_mm_s",
+    ] {
+        assert!(v["indicators"][k].is_number(), "{k}");
+    }
+    assert!(v["indicators"]["iso20816_zone"].is_string());
+    assert_eq!(v["demodulation_band_hz"].as_array().unwrap().len(), 2);
+    assert!(v["findings"][0]["score_db"].is_number() && v["findings"][0]["fault"].is_string());
+    let flat = stage_indicators_flat(&d);
+    assert!(flat.windows(2).all(|w| w[0].0 < w[1].0));
+    assert!(
+        flat.iter()
+            .any(|(n, _)| n == "band_bearing_resonance_rms_g")
+    );
+    assert!(
+        !flat.iter().any(|(n, _)| n == "band_ultrasonic_rms_g"),
+        "12 kHz cannot show the ultrasonic band"
+    );
+}
+
+// A user band finds an inner-race train (impacts at BPFI, amplitude modulated at 1x). Pre-whitening is
+// only checked to run: it removes strictly periodic lines, which a jitter-free synthetic train is.
+#[test]
+fn synthetic_inner_race_with_user_band_and_prewhitening() {
+    let f = cwru_de();
+    let shaft = 30.0;
+    let (mut x, fs) = impulse_train(f.bpfi * shaft, 3500.0, 12_000.0, 5.0, 1.5, 5);
+    for (i, v) in x.iter_mut().enumerate() {
+        *v *= 1.0 + 0.5 * (std::f64::consts::TAU * shaft * i as f64 / fs).cos();
+    }
+    let opts = DiagnoseOptions {
+        demodulation_band_hz: Some((2500.0, 4500.0)),
+        ..DiagnoseOptions::default()
+    };
+    let d = diagnose(&x, fs, shaft, &f, &opts).unwrap();
+    assert_eq!(d.diagnosis, "inner race", "{:?}", d.findings);
+    assert_eq!(d.demodulation_band_source, "user");
+    let white = diagnose(
+        &x,
+        fs,
+        shaft,
+        &f,
+        &DiagnoseOptions {
+            prewhiten: true,
+            ..opts
+        },
+    )
+    .unwrap();
+    assert!(white.prewhitened && !d.prewhitened);
+}
+
+// Gaussian noise (a healthy-baseline stand-in) is "none" for several seeds: the decision threshold
+// keeps pure noise below the call.
+#[test]
+fn gaussian_noise_is_none() {
+    let f = cwru_de();
+    for seed in 1..=6 {
+        let mut g = Gauss::new(seed);
+        let x: Vec<f64> = (0..60_000).map(|_| 0.1 * g.next()).collect();
+        let d = diagnose(&x, 12_000.0, 29.5, &f, &DiagnoseOptions::default()).unwrap();
+        assert_eq!(d.diagnosis, "none", "seed {seed}: {:?}", d.findings);
+        // Gaussian kurtosis is 3 (Pearson), crest factor of 60k Gaussian samples about 4–5.
+        assert!((d.indicators.kurtosis - 3.0).abs() < 0.1);
+    }
+}
+
+// Analytic: a 1x velocity sine of 4 mm/s RMS at 25 Hz reads 4 mm/s overall and at 1x, zone C for
+// group 2 rigid (ISO 10816-3 Table A.2: 2.8 ≤ v < 4.5).
+#[test]
+fn velocity_sine_gives_iso_zone() {
+    let fs = 5000.0;
+    let fr = 25.0;
+    let v_peak_mm_s = 4.0 * std::f64::consts::SQRT_2;
+    let a_peak_g = v_peak_mm_s * std::f64::consts::TAU * fr / (STANDARD_GRAVITY * 1000.0);
+    let x: Vec<f64> = (0..50_000)
+        .map(|i| a_peak_g * (std::f64::consts::TAU * fr * i as f64 / fs).cos())
+        .collect();
+    let d = diagnose(&x, fs, fr, &cwru_de(), &DiagnoseOptions::default()).unwrap();
+    assert!(
+        (d.indicators.velocity_rms_mm_s - 4.0).abs() < 0.04,
+        "{}",
+        d.indicators.velocity_rms_mm_s
+    );
+    assert!((d.stage_indicators.one_x_velocity_rms_mm_s - 4.0).abs() < 0.04);
+    assert_eq!(d.indicators.iso20816_zone, Zone::C);
+    let inch = DiagnoseOptions {
+        units: DisplayUnits {
+            velocity: VelocityUnit::InPerS,
+            acceleration: AccelUnit::MetresPerSecond2,
+        },
+        ..DiagnoseOptions::default()
+    };
+    let d2 = diagnose(&x, fs, fr, &cwru_de(), &inch).unwrap();
+    assert!((d2.display.velocity_rms * 25.4 - d.indicators.velocity_rms_mm_s).abs() < 1e-9);
+    assert!((d2.display.accel_rms - d.indicators.accel_rms_g * STANDARD_GRAVITY).abs() < 1e-12);
+}
+
+#[test]
+fn bad_inputs_are_errors() {
+    let f = cwru_de();
+    let x = vec![0.0; 4096];
+    let o = DiagnoseOptions::default();
+    assert!(matches!(
+        diagnose(&x[..100], 1000.0, 10.0, &f, &o),
+        Err(AnalysisError::TooShort { .. })
+    ));
+    assert!(matches!(
+        diagnose(&x, 0.0, 10.0, &f, &o),
+        Err(AnalysisError::BadSampleRate(_))
+    ));
+    assert!(matches!(
+        diagnose(&x, 1000.0, 600.0, &f, &o),
+        Err(AnalysisError::BadShaftSpeed(_))
+    ));
+    let bad = FaultFactors { bpfo: -1.0, ..f };
+    assert!(matches!(
+        diagnose(&x, 1000.0, 10.0, &bad, &o),
+        Err(AnalysisError::BadFactors(_))
+    ));
+    let mut y = x.clone();
+    y[7] = f64::INFINITY;
+    assert!(matches!(
+        diagnose(&y, 1000.0, 10.0, &f, &o),
+        Err(AnalysisError::NonFinite { index: 7 })
+    ));
+    let band = DiagnoseOptions {
+        demodulation_band_hz: Some((400.0, 900.0)),
+        ..o
+    };
+    assert!(matches!(
+        diagnose(&x, 1000.0, 10.0, &f, &band),
+        Err(AnalysisError::BadBand { .. })
+    ));
+}
+
+// Plot spectra: a 0.5 g sine at 120 Hz reads 0.5 g peak (flat-top), and its velocity RMS line is
+// 0.5·9806.65/(2π·120)/√2 mm/s.
+#[test]
+fn plot_spectra_read_true() {
+    let fs = 6000.0;
+    let x: Vec<f64> = (0..60_000)
+        .map(|i| 0.5 * (std::f64::consts::TAU * 120.0 * i as f64 / fs).sin())
+        .collect();
+    let mut e = SpectrumEngine::new();
+    let a = acceleration_spectrum(&mut e, &x, fs, 25.0, AccelUnit::G).unwrap();
+    let top = a.values.iter().copied().fold(0.0, f64::max);
+    assert!((20.0 * (top / 0.5).log10()).abs() < 0.1);
+    let v = velocity_spectrum(&mut e, &x, fs, 25.0, VelocityUnit::MmPerS).unwrap();
+    let top = v.values.iter().copied().fold(0.0, f64::max);
+    let want = 0.5 * STANDARD_GRAVITY * 1000.0
+        / (std::f64::consts::TAU * 120.0)
+        / std::f64::consts::SQRT_2;
+    assert!((20.0 * (top / want).log10()).abs() < 0.1);
+    let freqs = cwru_de().at_shaft_hz(25.0);
+    let (env, band) = envelope_spectrum(&mut e, &x, fs, &freqs, None, false).unwrap();
+    assert!(band[1] > band[0] && env.units.quantity == Quantity::SquaredEnvelopeG2);
+}
+
+// Clipped and silent recordings never get a location (rules::CLIPPED_FRACTION). The clipped case is the
+// synthetic outer-race train that is named above, flattened at 30 % of its peak.
+#[test]
+fn clipped_or_silent_recordings_get_no_location() {
+    let f = cwru_de();
+    let shaft = 1772.0 / 60.0;
+    let (x, fs) = impulse_train(f.bpfo * shaft, 3000.0, 12_000.0, 5.0, 2.0, 21);
+    let peak = x.iter().fold(0.0_f64, |m, v| m.max(v.abs()));
+    let clipped: Vec<f64> = x.iter().map(|v| v.clamp(-0.3 * peak, 0.3 * peak)).collect();
+    let d = diagnose(&clipped, fs, shaft, &f, &DiagnoseOptions::default()).unwrap();
+    assert_eq!(d.diagnosis, "none", "{}", d.location.reason);
+    assert!(
+        d.location.reason.contains("clipped"),
+        "{}",
+        d.location.reason
+    );
+    let silent = vec![0.0; 8192];
+    let d = diagnose(&silent, fs, shaft, &f, &DiagnoseOptions::default()).unwrap();
+    assert_eq!(d.diagnosis, "none");
+    assert!(
+        d.location.reason.contains("silent"),
+        "{}",
+        d.location.reason
+    );
+}
+
+// Every location threshold is in the table with its source.
+#[test]
+fn location_rules_are_documented() {
+    for r in rules::LOCATION_RULES {
+        assert!(
+            !r.source.is_empty() && !r.meaning.is_empty() && r.value.is_finite(),
+            "{}",
+            r.id
+        );
+    }
+}
