@@ -99,6 +99,7 @@ impl SpallcastApp {
         backend: Arc<dyn Backend>,
         options: StartOptions,
     ) -> Self {
+        crate::assets::install_fonts(&cc.egui_ctx);
         let persist = options.screenshot.is_none();
         let mut state: PersistedState = if persist {
             cc.storage

@@ -18,6 +18,7 @@
 pub mod actions;
 mod app;
 mod app_ui;
+pub mod assets;
 pub mod cache;
 pub mod decimate;
 pub mod model;

@@ -53,24 +53,33 @@ pub fn stage_badge_ui(ui: &mut egui::Ui, stage: Option<u8>) -> egui::Response {
     ui.add(button).on_hover_text(hint)
 }
 
-/// Colour for one plotted spectrum out of `count`, newest (index `count - 1`) most saturated.
+/// Colours of the older months, counted back from the newest (the month before it first): copper,
+/// sky blue, dusty plum, khaki, grey teal, rose. Distinct hues of our own, not shades of one.
+const MONTH_COLOURS: [Color32; 6] = [
+    Color32::from_rgb(0xb5, 0x6a, 0x4a),
+    Color32::from_rgb(0x4f, 0x8f, 0xc0),
+    Color32::from_rgb(0x9a, 0x6f, 0x9e),
+    Color32::from_rgb(0xa8, 0x9a, 0x5a),
+    Color32::from_rgb(0x4f, 0x9a, 0x96),
+    Color32::from_rgb(0xb0, 0x5a, 0x78),
+];
+
+/// The newest month's colour: dark ink blue (drawn thicker too).
+const NEWEST_MONTH: Color32 = Color32::from_rgb(0x12, 0x2c, 0x4f);
+
+/// Colour for one plotted spectrum out of `count` (index 0 the oldest): the newest is ink blue and
+/// the older ones take distinct hues counted back from it, so a month keeps its colour relation to
+/// the newest whatever the count.
 pub fn curve_colour(index: usize, count: usize) -> Color32 {
-    // Older readings fade toward a pale grey-teal and the newest is a deep teal, so the eye finds the
-    // latest month first and the marker hues stay distinct from every curve.
-    const NEWEST: [f32; 3] = [0.05, 0.45, 0.55];
-    const OLDEST: [f32; 3] = [0.62, 0.70, 0.72];
-    let t = if count <= 1 {
-        1.0
-    } else {
-        index as f32 / (count - 1) as f32
-    };
-    let mix = |a: f32, b: f32| ((a + (b - a) * t) * 255.0).round() as u8;
-    Color32::from_rgb(
-        mix(OLDEST[0], NEWEST[0]),
-        mix(OLDEST[1], NEWEST[1]),
-        mix(OLDEST[2], NEWEST[2]),
-    )
+    if count == 0 || index + 1 >= count {
+        return NEWEST_MONTH;
+    }
+    let back = count - 1 - index; // 1 for the month before the newest
+    MONTH_COLOURS[(back - 1) % MONTH_COLOURS.len()]
 }
+
+/// Demodulation-band edge lines on the acceleration spectrum.
+pub const DEMOD_BAND: Color32 = Color32::from_rgb(0x2b, 0x6c, 0x8a);
 
 /// Marker colour of a fault family (`None`: shaft harmonics).
 pub fn fault_colour(kind: Option<FaultKind>) -> Color32 {
@@ -111,6 +120,32 @@ pub const TREND_COLOURS: [Color32; 6] = [
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// Up to seven months every curve has its own colour, and no two differ only in lightness of one
+    /// hue: each pair differs by at least 40 in some channel after removing overall brightness.
+    #[test]
+    fn months_differ_by_hue_not_only_shade() {
+        let colours: Vec<Color32> = (0..7).map(|i| curve_colour(i, 7)).collect();
+        for (i, a) in colours.iter().enumerate() {
+            for b in &colours[i + 1..] {
+                let mean =
+                    |c: &Color32| (i32::from(c.r()) + i32::from(c.g()) + i32::from(c.b())) / 3;
+                let (ma, mb) = (mean(a), mean(b));
+                let d = [
+                    (i32::from(a.r()) - ma) - (i32::from(b.r()) - mb),
+                    (i32::from(a.g()) - ma) - (i32::from(b.g()) - mb),
+                    (i32::from(a.b()) - ma) - (i32::from(b.b()) - mb),
+                ];
+                assert!(d.iter().any(|x| x.abs() >= 25), "{a:?} vs {b:?}");
+            }
+        }
+        assert_eq!(curve_colour(2, 3), NEWEST_MONTH);
+        assert_eq!(
+            curve_colour(1, 3),
+            curve_colour(4, 6),
+            "the month before the newest"
+        );
+    }
 
     #[test]
     fn every_stage_has_its_own_colour_and_numeral() {

@@ -32,10 +32,13 @@ pub fn run_window_with(db_path: &Path, backend: Arc<dyn Backend>) -> anyhow::Res
     check_display()?;
     let options = options_from_env(db_path)?;
     let screenshot = options.screenshot.is_some();
-    let viewport = egui::ViewportBuilder::default()
+    let mut viewport = egui::ViewportBuilder::default()
         .with_title("Spallcast")
         .with_inner_size([1400.0, 900.0])
         .with_min_inner_size([900.0, 600.0]);
+    if let Some(icon) = crate::assets::app_icon() {
+        viewport = viewport.with_icon(std::sync::Arc::new(icon));
+    }
     let native = eframe::NativeOptions {
         viewport,
         renderer: eframe::Renderer::Glow,

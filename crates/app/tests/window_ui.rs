@@ -102,7 +102,11 @@ fn select_bearing_add_month_and_toggle_fault_markers() {
     assert_eq!(panel.selected, vec![ids[1], ids[2], ids[3]]);
     assert_eq!(panel.summary.drawn, vec![ids[1], ids[2], ids[3]]);
     assert!(panel.summary.plotted_points > 0);
-    // The plot spans the whole spectrum once it has arrived (from 0 Hz to at most Nyquist).
+    // The plot spans the whole spectrum once it has arrived and "Full span" is chosen (from 0 Hz to
+    // at most Nyquist); it opens on the defect region (checked in spectra_open_on_the_defect_region).
+    h.get_by_label("Full span").click();
+    h.run_steps(3);
+    let panel = h.state().spectra_panel();
     let (x0, x1) = panel.summary.x_range;
     assert!(x0.abs() < 1e-9, "starts at 0 Hz: {x0}");
     assert!(
@@ -430,4 +434,91 @@ fn due_dates_in_the_past_are_marked_overdue() {
     settle(&mut h);
     assert!(h.query_by_label(&due).is_none());
     assert!(h.query_by_label(&format!("overdue: {due}")).is_some());
+}
+
+/// The envelope spectrum opens on the defect region (0 Hz to about 10x the highest fault frequency,
+/// so the BPFO markers are spread across the plot instead of piled at the left); "Fit to markers"
+/// and "Full span" change the frequency range only; the month legend and colours follow dates.
+#[test]
+fn spectra_open_on_the_defect_region() {
+    let fx = build_fixture();
+    let mut h = harness(&fx.db, true);
+    settle(&mut h);
+    h.get_by_label(BEARING_LABEL).click();
+    h.step();
+    settle(&mut h);
+    h.get_by_label("Envelope").click();
+    h.step();
+    settle(&mut h);
+    h.run_steps(3);
+    let bpfo_hz = BPFO_ORDERS * RPM / 60.0; // 105.87 Hz, REFERENCES.md §1.2(a)
+    let panel = h.state().spectra_panel();
+    let (x0, x1) = panel.summary.x_range;
+    assert!(x0.abs() < 1e-9, "starts at 0 Hz: {x0}");
+    // CWRU drive-end bearing: BPFI 5.4152 orders is the highest defect rate (REFERENCES.md §1.2(a)),
+    // 10.5 x 5.4152 x 1772/60 = 1680 Hz.
+    let highest_hz = 5.4152 * RPM / 60.0;
+    assert!(
+        x1 > 3.0 * bpfo_hz && x1 <= 10.6 * highest_hz,
+        "opens at 0..{x1} Hz, not the full span"
+    );
+    assert!(x1 < 0.25 * common::FS_HZ, "{x1}");
+    let fmax = h.state().spectra_panel().fmax;
+    assert!(
+        (fmax - x1).abs() < 1e-6,
+        "Fmax field shows the range: {fmax}"
+    );
+
+    h.get_by_label("Full span").click();
+    h.run_steps(3);
+    let (_, full) = h.state().spectra_panel().summary.x_range;
+    assert!(full > x1 * 1.5, "full span {full} wider than {x1}");
+
+    h.get_by_label("Fit to markers").click();
+    h.run_steps(3);
+    let (f0, f1) = h.state().spectra_panel().summary.x_range;
+    let top_marker = h
+        .state()
+        .spectra_panel()
+        .summary
+        .markers
+        .iter()
+        .map(|(_, f)| *f)
+        .filter(|f| *f <= full)
+        .fold(0.0_f64, f64::max);
+    assert!(
+        f0.abs() < 1e-9 && f1 >= top_marker * 0.99 && f1 <= full + 1e-9,
+        "{f0}..{f1}, top marker {top_marker}"
+    );
+}
+
+/// The bundled fallback font draws the symbols the UI wants (arrows, the warning sign), which egui's
+/// own fonts lack (DEVELOPERS.md used to ask UI text to avoid them).
+#[test]
+fn bundled_font_draws_arrows_and_the_warning_sign() {
+    use eframe::egui;
+    let fx = build_fixture();
+    let mut h = harness(&fx.db, true);
+    settle(&mut h);
+    let ctx = h.ctx.clone();
+    let families = ctx.fonts(|f| f.definitions().families.clone());
+    assert_eq!(
+        families[&egui::FontFamily::Proportional]
+            .last()
+            .map(String::as_str),
+        Some(spallcast_app::assets::FALLBACK_FONT_NAME)
+    );
+    let symbols = "\u{2192}\u{2190}\u{2191}\u{2193}\u{26a0}\u{2022}";
+    for font in [
+        egui::FontId::proportional(14.0),
+        egui::FontId::monospace(12.0),
+    ] {
+        assert!(ctx.fonts_mut(|f| f.has_glyphs(&font, symbols)), "{font:?}");
+    }
+    // egui's default fonts alone lack the warning sign: the check above can fail.
+    let plain = egui::Context::default();
+    plain.set_fonts(egui::FontDefinitions::default());
+    let mut out = plain.run_ui(egui::RawInput::default(), |_| {});
+    out.textures_delta.clear();
+    assert!(!plain.fonts_mut(|f| f.has_glyph(&egui::FontId::proportional(14.0), '\u{26a0}')));
 }

@@ -1,12 +1,13 @@
 //! The demo plant database: the invented site of `demo-plant/`, its 18 route days simulated by
-//! `spallcast-simulate`, imported through the ordinary route import.
+//! `spallcast-simulate` with its dates moved so the last route day falls in the week before the day the
+//! database is built, imported through the ordinary route import.
 
 use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 use std::time::Instant;
 
 use anyhow::{Context, Result};
-use spallcast_simulate::{PLANT_TOML, SCENARIO_TOML, generate_demo_routes_from_str};
+use spallcast_simulate::{PLANT_TOML, SCENARIO_TOML, dated_demo, generate_demo_routes_from_str};
 use spallcast_store::{PlantFile, RejectedFile, Store};
 
 use crate::SpallcastAnalyzer;
@@ -83,13 +84,18 @@ pub fn create_demo_database(
     progress("simulating route days", 0, 1);
     let routes =
         tempfile::tempdir().context("cannot create a temporary folder for the demo routes")?;
-    let demo = generate_demo_routes_from_str(PLANT_TOML, SCENARIO_TOML, routes.path())
-        .context("simulating the demo plant's route days failed")?;
+    // Dated relative to today: the last route day falls in the week before, the outages ahead.
+    let today = chrono::Local::now().date_naive();
+    let dated = dated_demo(PLANT_TOML, SCENARIO_TOML, today)
+        .context("dating the demo plant relative to today failed")?;
+    let demo =
+        generate_demo_routes_from_str(&dated.plant_toml, &dated.scenario_toml, routes.path())
+            .context("simulating the demo plant's route days failed")?;
     progress("simulating route days", 1, 1);
     let generate_secs = started.elapsed().as_secs_f64();
 
     let started = Instant::now();
-    let plant = PlantFile::parse(PLANT_TOML, Path::new("demo-plant/plant.toml"))
+    let plant = PlantFile::parse(&dated.plant_toml, Path::new("demo-plant/plant.toml"))
         .context("the demo plant file is invalid")?;
     let mut readings = 0;
     let mut rejected = Vec::new();

@@ -11,7 +11,8 @@
 //!
 //! Layout: a header row, then one row per planned or done replacement (outages by start date, bearings
 //! by machine and position), then one row per bearing still without a slot (status `unplanned`, outage
-//! columns empty, sorted by replace-by date). Fields are quoted when they hold a comma, a quote or a line
+//! columns empty, sorted by replace-by date). The last column, `caution`, repeats the advisory line
+//! ([`crate::SAFETY_CAUTION`]) on every row, so it stays with any row a spreadsheet filter keeps. Fields are quoted when they hold a comma, a quote or a line
 //! break; lines end in CRLF; the file is UTF-8 without a byte-order mark.
 
 use crate::board::PlanBoard;
@@ -19,7 +20,7 @@ use crate::error::Result;
 use crate::model::{BearingLife, Forecast};
 
 /// The header row, in order.
-pub const CSV_COLUMNS: [&str; 17] = [
+pub const CSV_COLUMNS: [&str; 18] = [
     "outage",
     "outage_start",
     "outage_end",
@@ -37,6 +38,7 @@ pub const CSV_COLUMNS: [&str; 17] = [
     "suggested_outage",
     "warnings",
     "note",
+    "caution",
 ];
 
 /// Prefixes an apostrophe to a cell that a spreadsheet would read as a formula (see the module doc).
@@ -154,6 +156,7 @@ fn row(
         suggested,
         warnings,
         note,
+        crate::html::SAFETY_CAUTION.to_owned(),
     ]
 }
 

@@ -6,7 +6,8 @@
 //! bearing and ultrasonic resonances, shaped stage by stage after the four-stage model.
 //! [`Progression`] maps days since fault onset, lubrication and speed to a stage and severity.
 //! [`generate_demo_routes`] turns the invented demo plant (`demo-plant/`) into 18 monthly route
-//! folders that Spallcast imports.
+//! folders that Spallcast imports; [`dated_demo`] first moves its dates so the last route day falls in
+//! the week before the day the demo is built.
 //!
 //! Conventions: frequencies in Hz, acceleration in g, bearing factors in orders of shaft speed
 //! with BSF in the 1x ball-spin convention; a rolling-element defect strikes at 2×BSF.
@@ -28,8 +29,9 @@ mod signal;
 
 pub use corpus::{CorpusExtras, CorpusReading, hard_corpus};
 pub use demo::{
-    BAD_RECORDING_SAMPLES, DemoSummary, PLANT_TOML, SCENARIO_TOML, TruthRow, demo_dir_default,
-    demo_truth_from_str, generate_demo_routes, generate_demo_routes_from_str,
+    BAD_RECORDING_SAMPLES, DatedDemo, DemoSummary, PLANT_TOML, SCENARIO_TOML, TruthRow, dated_demo,
+    demo_dir_default, demo_truth_from_str, generate_demo_routes, generate_demo_routes_from_str,
+    shift_dates,
 };
 pub use error::SimError;
 pub use model::{

@@ -4,7 +4,7 @@
 use std::collections::BTreeSet;
 
 use spallcast_simulate::{
-    BAD_RECORDING_SAMPLES, FaultKind, PLANT_TOML, SCENARIO_TOML, demo_dir_default,
+    BAD_RECORDING_SAMPLES, FaultKind, PLANT_TOML, SCENARIO_TOML, dated_demo, demo_dir_default,
     demo_truth_from_str, generate_demo_routes_from_str,
 };
 
@@ -187,7 +187,77 @@ fn readme_table_matches_truth() {
     assert_eq!(stages("AE-F2-FDE-H"), "000001111111122222");
     assert_eq!(stages("FT-P1-PDE-H"), "000000000000122223");
     assert_eq!(stages("TW-M1-MDE-H"), "000111111222222222");
-    assert_eq!(stages("AE-F1-FDE-H"), "111111222222222233");
+    // Replaced between the last two route days (scenario `replaced = "2026-11-04"`): healthy on the
+    // last day, so the demo has a change on its last route day.
+    assert_eq!(stages("AE-F1-FDE-H"), "111111222222222230");
     assert_eq!(stages("AE-G1-HSDE-H"), "000011111111111222");
     assert_eq!(stages("TW-P1-PDE-H"), "000000000000000000");
+}
+
+fn date(t: &str) -> chrono::NaiveDate {
+    chrono::NaiveDate::parse_from_str(t, "%Y-%m-%d").unwrap()
+}
+
+/// Built on 2026-12-02 (the day the window was tried), the demo's last route day falls within the
+/// week before, every planned outage lies ahead, and the story is the same as written, moved in
+/// time: the same stages in the same order, dates moved by whole weeks.
+#[test]
+fn dated_demo_ends_in_the_week_before_it_is_built() {
+    let today = date("2026-12-02");
+    let dated = dated_demo(PLANT_TOML, SCENARIO_TOML, today).unwrap();
+    let gap = (today - dated.last_route_day).num_days();
+    assert!(
+        (0..7).contains(&gap),
+        "last route day {}",
+        dated.last_route_day
+    );
+    assert_eq!(dated.shift_days, 21);
+
+    let truth = demo_truth_from_str(&dated.plant_toml, &dated.scenario_toml).unwrap();
+    let last = truth.iter().map(|t| t.date).max().unwrap();
+    assert_eq!(last, dated.last_route_day);
+    let written = demo_truth_from_str(PLANT_TOML, SCENARIO_TOML).unwrap();
+    assert_eq!(truth.len(), written.len());
+    for (moved, as_written) in truth.iter().zip(&written) {
+        assert_eq!(moved.date - as_written.date, chrono::Duration::days(21));
+        assert_eq!(
+            (moved.stage, &moved.point),
+            (as_written.stage, &as_written.point)
+        );
+    }
+
+    // Every outage starts after today (plant.toml `[[outages]] start`).
+    let plant: toml::Value = toml::from_str(&dated.plant_toml).unwrap();
+    let outages = plant["outages"].as_array().unwrap();
+    assert_eq!(outages.len(), 7);
+    for o in outages {
+        let start = date(o["start"].as_str().unwrap());
+        assert!(start > today, "outage {} starts {start}", o["name"]);
+    }
+}
+
+/// The last route day differs from the one before for at least one bearing (a replacement and a
+/// stage change), so "Changed since the previous route day" has something to show.
+#[test]
+fn demo_changes_on_its_last_route_day() {
+    let truth = demo_truth_from_str(PLANT_TOML, SCENARIO_TOML).unwrap();
+    let days: BTreeSet<_> = truth.iter().map(|t| t.date).collect();
+    let mut days = days.into_iter().rev();
+    let (last, previous) = (days.next().unwrap(), days.next().unwrap());
+    let stage_on = |day, point: &str| {
+        truth
+            .iter()
+            .find(|t| t.date == day && t.point == point)
+            .map(|t| t.stage.get())
+            .unwrap()
+    };
+    let changed: Vec<&str> = truth
+        .iter()
+        .filter(|t| t.date == last && stage_on(previous, &t.point) != t.stage.get())
+        .map(|t| t.point.as_str())
+        .collect();
+    assert!(changed.contains(&"AE-F1-FDE-H"), "{changed:?}");
+    assert!(changed.contains(&"FT-P1-PDE-H"), "{changed:?}");
+    assert_eq!(stage_on(last, "AE-F1-FDE-H"), 0);
+    assert_eq!(stage_on(previous, "AE-F1-FDE-H"), 3);
 }

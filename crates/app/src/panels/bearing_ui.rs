@@ -63,10 +63,23 @@ impl EvidencePanel {
                     });
             }
         }
-        if let Some(f) = &history.forecast {
+        let late = history.stage_call.as_ref().is_some_and(|c| c.stage >= 4);
+        if late {
+            // Stage 4: no interval to wait through (it would run from a date to itself).
+            ui.separator();
+            ui.strong("Replace now");
+            ui.label(
+                egui::RichText::new(crate::plan_view::LATE_STAGE_CAUTION)
+                    .color(crate::plan_view::WARNING_TEXT),
+            );
+        } else if let Some(f) = &history.forecast {
             ui.separator();
             ui.strong(format!("Replace by {}", f.replace_by));
-            ui.label(format!("interval {} to {}", f.earliest, f.latest));
+            if f.earliest == f.latest {
+                ui.label(format!("on {}", f.earliest));
+            } else {
+                ui.label(format!("interval {} to {}", f.earliest, f.latest));
+            }
         }
         ui.separator();
         ui.label(

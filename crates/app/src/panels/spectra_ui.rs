@@ -62,9 +62,87 @@ pub struct SpectraPanel {
     pub summary: SpectraFrameSummary,
     /// Cursor readout of the last frame.
     pub cursor: Option<CursorReadout>,
-    /// The full x span the plot was last fitted to; when the spectra's span differs (they arrived, or
-    /// another kind or axis was chosen) the plot is fitted again.
-    fitted_x_span: Option<f64>,
+    /// What the plot was last fitted for (kind, axis, full span, point); when it changes (the spectra
+    /// arrived, another kind, axis or point was chosen) the plot opens on the defect region again.
+    fitted_for: Option<(SpectrumKind, FreqAxis, u64, Option<String>)>,
+    /// Upper frequency edge (axis unit) shown; the Fmax field edits it.
+    pub fmax: f64,
+    /// An x range (axis unit) to apply on the next frame (Fmax edited, "Fit to markers", "Full span").
+    pending_x: Option<(f64, f64)>,
+    /// Full span (axis unit) of the last frame's spectra.
+    full_x: f64,
+    /// Highest fault or shaft marker (not sidebands) of the last frame, axis unit.
+    markers_x_max: Option<f64>,
+}
+
+/// Upper frequency (Hz) a spectrum opens at: up to about 10x the highest fault repetition frequency
+/// for the envelope and velocity spectra (their defect tones and first harmonics), the resonance
+/// region (a little above the demodulation band) for acceleration; never above `max_hz`. Without
+/// bearing factors the envelope and velocity open up to 50x shaft speed, and acceleration without a
+/// band at full span (common practice, no source).
+pub fn opening_fmax_hz(
+    kind: SpectrumKind,
+    freqs: Option<&spallcast_analysis::FaultFrequencies>,
+    shaft_hz: f64,
+    band_hz: Option<(f64, f64)>,
+    max_hz: f64,
+) -> f64 {
+    let highest = freqs.map(|f| {
+        FaultKind::ALL
+            .iter()
+            .map(|k| f.defect_rate_hz(*k))
+            .fold(0.0_f64, f64::max)
+    });
+    let wanted = match kind {
+        SpectrumKind::Envelope | SpectrumKind::Velocity => match highest {
+            Some(h) if h > 0.0 => 10.5 * h,
+            _ if shaft_hz > 0.0 => 50.0 * shaft_hz,
+            _ => max_hz,
+        },
+        SpectrumKind::Acceleration => band_hz.map_or(max_hz, |(_, hi)| 1.5 * hi),
+    };
+    if wanted.is_finite() && wanted > 0.0 {
+        wanted.min(max_hz)
+    } else {
+        max_hz
+    }
+}
+
+/// Grid marks for the frequency axis: a 1-2-5 step giving about eight labelled lines across the
+/// visible range at any zoom, with four unlabelled lines between them.
+#[allow(
+    clippy::needless_pass_by_value,
+    reason = "egui_plot's grid spacer takes its input by value"
+)]
+pub fn frequency_grid(input: egui_plot::GridInput) -> Vec<egui_plot::GridMark> {
+    let (lo, hi) = input.bounds;
+    let span = hi - lo;
+    if !(span.is_finite() && span > 0.0) {
+        return Vec::new();
+    }
+    let rough = span / 8.0;
+    let decade = 10f64.powf(rough.log10().floor());
+    let step = [1.0, 2.0, 5.0, 10.0]
+        .into_iter()
+        .map(|m| m * decade)
+        .find(|s| *s >= rough)
+        .unwrap_or(10.0 * decade);
+    let minor = step / 5.0;
+    let first = (lo / minor).floor() as i64;
+    let last = (hi / minor).ceil() as i64;
+    if last - first > 400 {
+        return Vec::new();
+    }
+    (first..=last)
+        .map(|i| {
+            let value = i as f64 * minor;
+            let major = i.rem_euclid(5) == 0;
+            egui_plot::GridMark {
+                value,
+                step_size: if major { step } else { minor },
+            }
+        })
+        .collect()
 }
 
 /// The default months of a point: the latest reading, the one before it, and the baseline (first
@@ -131,6 +209,7 @@ impl SpectraPanel {
         controls_ui(ui, settings);
         self.months_ui(ui, history);
         markers_ui(ui, &mut settings.markers, history.factors.is_some());
+        self.range_ui(ui, settings.axis);
         let missing: Vec<ReadingId> = self
             .selected
             .iter()
@@ -164,6 +243,48 @@ impl SpectraPanel {
         self.plot_ui(ui, settings, history, &curves, plot_height);
         self.summary.waiting = waiting;
         self.readout_ui(ui, settings.kind);
+    }
+
+    /// Fmax field, "Fit to markers" and "Full span".
+    fn range_ui(&mut self, ui: &mut egui::Ui, axis: FreqAxis) {
+        ui.horizontal(|ui| {
+            let full = self.full_x;
+            let mut fmax = self.fmax;
+            let unit = match axis {
+                FreqAxis::Hz => " Hz",
+                FreqAxis::Cpm => " CPM",
+                FreqAxis::Orders => " orders",
+            };
+            let edit = ui.add_enabled(
+                full > 0.0,
+                egui::DragValue::new(&mut fmax)
+                    .range(0.0..=full.max(1.0))
+                    .speed((full / 500.0).max(0.01))
+                    .max_decimals(1)
+                    .prefix("Fmax ")
+                    .suffix(unit),
+            );
+            if edit.changed() && fmax > 0.0 {
+                self.pending_x = Some((0.0, fmax.min(full)));
+            }
+            let fit = ui
+                .add_enabled(
+                    self.markers_x_max.is_some(),
+                    egui::Button::new("Fit to markers"),
+                )
+                .on_hover_text("Show 0 Hz to a little past the highest fault marker switched on");
+            if fit.clicked()
+                && let Some(top) = self.markers_x_max
+            {
+                self.pending_x = Some((0.0, (top * 1.1).min(full)));
+            }
+            if ui
+                .add_enabled(full > 0.0, egui::Button::new("Full span"))
+                .clicked()
+            {
+                self.pending_x = Some((0.0, full));
+            }
+        });
     }
 
     fn months_ui(&mut self, ui: &mut egui::Ui, history: &BearingHistory) {
@@ -204,6 +325,10 @@ impl SpectraPanel {
         });
     }
 
+    #[allow(
+        clippy::too_many_lines,
+        reason = "one plot closure: curves, stacked labels, band and markers share its range"
+    )]
     fn plot_ui(
         &mut self,
         ui: &mut egui::Ui,
@@ -228,14 +353,21 @@ impl SpectraPanel {
         let mut plotted = 0;
         let mut data_top = f64::MIN;
         let mut x_range = (0.0, 0.0);
+        let full_x = if max_x > 0.0 { max_x } else { 1.0 };
+        // Scrolling zooms the frequency axis about the pointer and dragging pans it; the amplitude
+        // axis always fits the data in view, so neither can move it off the curves.
         let plot = Plot::new(("spectra-plot", kind, axis, scale, settings.layout))
             .height(height)
-            .legend(Legend::default())
+            .legend(Legend::default().follow_insertion_order(true))
             .x_axis_label(axis.title())
             .y_axis_label(kind.axis_title())
             .auto_bounds(egui::Vec2b::new(false, true))
-            .default_x_bounds(0.0, if max_x > 0.0 { max_x } else { 1.0 })
-            .allow_boxed_zoom(true);
+            .default_x_bounds(0.0, full_x)
+            .allow_zoom(egui::Vec2b::new(true, false))
+            .allow_scroll(false)
+            .allow_drag(egui::Vec2b::new(true, false))
+            .allow_boxed_zoom(false)
+            .x_grid_spacer(frequency_grid);
         let plot = match (scale, settings.layout) {
             (AmplitudeScale::Log, Layout::Overlay) => {
                 plot.y_axis_formatter(|mark, _| format!("{:.0e}", 10f64.powf(mark.value)))
@@ -247,15 +379,44 @@ impl SpectraPanel {
             .iter()
             .map(|m| (axis.from_hz(m.freq_hz, ref_shaft_hz), m))
             .collect();
-        // The plot keeps its bounds between frames: fit it to the whole span when the spectra arrive
-        // (the first frames have none) or their span changes; zoom and pan are kept otherwise.
-        let refit = max_x > 0.0 && self.fitted_x_span != Some(max_x);
+        // The plot keeps its bounds between frames: open it on the defect region when the spectra
+        // arrive (the first frames have none) or the kind, axis or point changes; zoom and pan are
+        // kept otherwise.
+        let fit_key = (kind, axis, max_x.to_bits(), self.point.clone());
+        let refit = max_x > 0.0 && self.fitted_for.as_ref() != Some(&fit_key);
+        if refit {
+            let open_x = opening_x(kind, axis, history, newest, max_x);
+            self.pending_x = Some((0.0, if open_x > 0.0 { open_x } else { max_x }));
+        }
+        let pending = self.pending_x.take();
+        let zoom_steps = ui.input(|i| i.smooth_scroll_delta.y);
+        let band_x = newest
+            .and_then(|(_, s)| s.envelope_band_hz)
+            .filter(|_| kind == SpectrumKind::Acceleration)
+            .map(|(lo, hi)| {
+                (
+                    axis.from_hz(lo, ref_shaft_hz),
+                    axis.from_hz(hi, ref_shaft_hz),
+                )
+            });
         let response = plot.show(ui, |pui| {
+            if let Some((a, b)) = pending {
+                pui.set_plot_bounds_x(a..=b);
+            } else if zoom_steps != 0.0 && pui.response().hovered() {
+                let factor = (zoom_steps / 200.0).exp();
+                pui.zoom_bounds_around_hovered(egui::Vec2::new(factor, 1.0));
+            }
             let bounds = pui.plot_bounds();
-            let (x0, x1) = (bounds.min()[0], bounds.max()[0]);
-            let range = if refit {
-                pui.set_plot_bounds_x(0.0..=max_x);
-                (0.0, max_x)
+            let (mut x0, mut x1) = (bounds.min()[0], bounds.max()[0]);
+            // Never show negative frequencies nor run past the top line.
+            if x0.is_finite() && x1.is_finite() && x1 > x0 && (x0 < 0.0 || x1 > full_x * 1.02) {
+                let width = (x1 - x0).min(full_x);
+                x0 = x0.max(0.0).min(full_x - width);
+                x1 = x0 + width;
+                pui.set_plot_bounds_x(x0..=x1);
+            }
+            let range = if let Some((a, b)) = pending {
+                (a, b)
             } else if x0.is_finite() && x1.is_finite() && x1 > x0 {
                 (x0, x1)
             } else {
@@ -295,36 +456,39 @@ impl SpectraPanel {
                 plotted += buf.len();
                 data_top = buf.iter().map(|p| p[1]).fold(data_top, f64::max);
                 let newest_curve = i + 1 == count;
+                let colour = palette::curve_colour(i, count);
+                if step > 0.0 {
+                    // Stacked: name each trace at its left end.
+                    pui.text(
+                        Text::new(
+                            "",
+                            egui_plot::PlotPoint::new(
+                                range.0 + 0.01 * (range.1 - range.0),
+                                offset + 0.35 * step,
+                            ),
+                            reading.legend_label(),
+                        )
+                        .color(colour)
+                        .anchor(egui::Align2::LEFT_BOTTOM),
+                    );
+                }
                 pui.line(
                     Line::new(reading.legend_label(), PlotPoints::new(buf))
-                        .color(palette::curve_colour(i, count))
-                        .width(if newest_curve { 1.6 } else { 1.0 }),
+                        .color(colour)
+                        .width(if newest_curve { 1.8 } else { 1.1 }),
                 );
             }
-            let visible: Vec<&(f64, &FaultMarker)> = marker_xs
-                .iter()
-                .filter(|(x, _)| *x >= range.0 && *x <= range.1)
-                .collect();
-            for (x, m) in &visible {
-                let colour = palette::fault_colour(marker_kind(m));
-                let line = VLine::new("", *x).color(colour.gamma_multiply(0.8));
-                let line = if matches!(m.family, MarkerFamily::Sideband(_)) {
-                    line.style(LineStyle::dashed_dense()).width(0.8)
-                } else {
-                    line.width(1.2)
-                };
-                pui.vline(line);
-            }
-            if data_top.is_finite() && visible.len() <= MAX_MARKER_LABELS {
-                for (x, m) in visible.iter().filter(|(_, m)| m.sideband == 0) {
-                    let colour = palette::fault_colour(marker_kind(m));
-                    pui.text(
-                        Text::new("", egui_plot::PlotPoint::new(*x, data_top), m.label.clone())
-                            .color(colour)
-                            .anchor(egui::Align2::LEFT_BOTTOM),
+            if let Some((lo, hi)) = band_x {
+                for x in [lo, hi] {
+                    pui.vline(
+                        VLine::new("demodulation band", x)
+                            .color(palette::DEMOD_BAND)
+                            .style(LineStyle::dashed_loose())
+                            .width(1.4),
                     );
                 }
             }
+            draw_markers(pui, &marker_xs, range, data_top.is_finite());
             pui.pointer_coordinate()
         });
         self.summary.drawn = curves.iter().map(|(r, _)| r.id).collect();
@@ -335,11 +499,22 @@ impl SpectraPanel {
         self.summary.plotted_points = plotted;
         self.summary.x_range = x_range;
         if refit {
-            self.fitted_x_span = Some(max_x);
+            self.fitted_for = Some(fit_key);
         }
+        self.fmax = x_range.1;
+        self.full_x = max_x;
+        self.markers_x_max = marker_xs
+            .iter()
+            .filter(|(_, m)| m.sideband == 0)
+            .map(|(x, _)| *x)
+            .filter(|x| x.is_finite() && *x <= max_x)
+            .reduce(f64::max);
         self.cursor = response.inner.and_then(|p| {
             let (_, spectra) = newest?;
             let freq_hz = axis.to_hz(p.x, ref_shaft_hz);
+            if !(freq_hz.is_finite() && freq_hz >= 0.0) {
+                return None;
+            }
             let nearest = marker_xs
                 .iter()
                 .min_by(|a, b| (a.0 - p.x).abs().total_cmp(&(b.0 - p.x).abs()))
@@ -355,8 +530,8 @@ impl SpectraPanel {
 
     fn readout_ui(&self, ui: &mut egui::Ui, kind: SpectrumKind) {
         let text = match &self.cursor {
-            None => "Point at the plot for frequency, order, amplitude and the nearest marker. Drag to pan, \
-                     scroll to zoom, drag with the right button to zoom a box, double-click to reset."
+            None => "Point at the plot for frequency, order, amplitude and the nearest marker. Scroll to zoom \
+                     the frequency axis, drag to pan it, double-click for the full span."
                 .to_owned(),
             Some(c) => {
                 let amp = c.amplitude.map_or_else(|| "–".to_owned(), |a| format!("{a:.4} {}", kind.unit()));
@@ -373,6 +548,61 @@ impl SpectraPanel {
             }
         };
         ui.label(egui::RichText::new(text).monospace().small());
+    }
+}
+
+/// The x (axis unit) the plot opens at for the newest reading: [`opening_fmax_hz`] in the axis unit.
+fn opening_x(
+    kind: SpectrumKind,
+    axis: FreqAxis,
+    history: &BearingHistory,
+    newest: Option<&(&ReadingSummary, SharedSpectra)>,
+    max_x: f64,
+) -> f64 {
+    let ref_shaft_hz = newest.map_or(0.0, |(r, _)| r.shaft_hz());
+    let band = newest.and_then(|(_, s)| s.envelope_band_hz);
+    let freqs = history
+        .factors
+        .filter(|_| ref_shaft_hz > 0.0)
+        .map(|f| f.at_shaft_hz(ref_shaft_hz));
+    let max_hz = axis.to_hz(max_x, ref_shaft_hz);
+    let open_hz = opening_fmax_hz(kind, freqs.as_ref(), ref_shaft_hz, band, max_hz);
+    axis.from_hz(open_hz, ref_shaft_hz).min(max_x)
+}
+
+/// Marker lines in `range`, with labels hanging from the top of the view (so they stay in sight at
+/// any zoom) unless there are too many.
+fn draw_markers(
+    pui: &mut egui_plot::PlotUi<'_>,
+    marker_xs: &[(f64, &FaultMarker)],
+    range: (f64, f64),
+    labelled: bool,
+) {
+    let visible: Vec<&(f64, &FaultMarker)> = marker_xs
+        .iter()
+        .filter(|(x, _)| *x >= range.0 && *x <= range.1)
+        .collect();
+    for (x, m) in &visible {
+        let colour = palette::fault_colour(marker_kind(m));
+        let line = VLine::new("", *x).color(colour.gamma_multiply(0.8));
+        let line = if matches!(m.family, MarkerFamily::Sideband(_)) {
+            line.style(LineStyle::dashed_dense()).width(0.8)
+        } else {
+            line.width(1.2)
+        };
+        pui.vline(line);
+    }
+    // Labels hang from the top of the view, so they stay in sight at any zoom.
+    let label_y = pui.plot_bounds().max()[1];
+    if labelled && label_y.is_finite() && visible.len() <= MAX_MARKER_LABELS {
+        for (x, m) in visible.iter().filter(|(_, m)| m.sideband == 0) {
+            let colour = palette::fault_colour(marker_kind(m));
+            pui.text(
+                Text::new("", egui_plot::PlotPoint::new(*x, label_y), m.label.clone())
+                    .color(colour)
+                    .anchor(egui::Align2::LEFT_TOP),
+            );
+        }
     }
 }
 

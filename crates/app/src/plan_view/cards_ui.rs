@@ -142,6 +142,11 @@ pub(super) fn task_ui(
                 close = true;
             }
         });
+        ui.label(
+            egui::RichText::new(super::LATE_STAGE_CAUTION)
+                .small()
+                .color(WARNING_TEXT),
+        );
         if close {
             *done_form = None;
         }
@@ -185,6 +190,13 @@ fn need_ui(
         ));
         if !need.forecast.evidence.is_empty() {
             ui.weak(&need.forecast.evidence);
+        }
+        if need.forecast.stage >= 4 {
+            ui.label(
+                egui::RichText::new(format!("Replace now. {}", super::LATE_STAGE_CAUTION))
+                    .small()
+                    .color(WARNING_TEXT),
+            );
         }
         match board.suggestion(need) {
             Some(outage) => {
