@@ -31,11 +31,11 @@ pub struct PlanDrag {
 /// Colour of warning text (a dark amber, distinct from the stage ramp).
 pub const WARNING_TEXT: egui::Color32 = egui::Color32::from_rgb(0x8a, 0x3f, 0x00);
 
-/// Heading of the column of bearings without a slot.
 /// Caution repeated where a late-stage bearing is decided on: the stage-4 card and the "Mark done" form.
 pub const LATE_STAGE_CAUTION: &str = "A late-stage bearing can fail within minutes, and a quiet reading does not \
 prove a machine safe. Advice only: isolate and lock out before any work.";
 
+/// Heading of the column of bearings without a slot.
 pub const NEEDS_HEADING: &str = "Bearings that need a slot (by replace-by date)";
 
 /// UI state of the calendar (no data: the board is passed in each frame).
