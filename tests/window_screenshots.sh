@@ -35,7 +35,7 @@ if [ -z "$display_num" ]; then
     exit 1
 fi
 
-Xvfb ":$display_num" -screen 0 1400x900x24 -nolisten tcp >"$out_dir/xvfb.log" 2>&1 &
+Xvfb ":$display_num" -screen 0 1920x1200x24 -nolisten tcp >"$out_dir/xvfb.log" 2>&1 &
 xvfb_pid=$!
 cleanup() { kill "$xvfb_pid" 2>/dev/null; wait "$xvfb_pid" 2>/dev/null; }
 trap cleanup EXIT

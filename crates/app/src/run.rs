@@ -34,7 +34,7 @@ pub fn run_window_with(db_path: &Path, backend: Arc<dyn Backend>) -> anyhow::Res
     let screenshot = options.screenshot.is_some();
     let mut viewport = egui::ViewportBuilder::default()
         .with_title("Spallcast")
-        .with_inner_size([1400.0, 900.0])
+        .with_inner_size(window_size_from_env().unwrap_or([1400.0, 900.0]))
         .with_min_inner_size([900.0, 600.0]);
     if let Some(icon) = crate::assets::app_icon() {
         viewport = viewport.with_icon(std::sync::Arc::new(icon));
@@ -88,4 +88,13 @@ pub fn check_display() -> anyhow::Result<()> {
         }
     }
     Ok(())
+}
+
+/// `SPALLCAST_WINDOW_SIZE=WIDTHxHEIGHT` (e.g. `1280x720`): the window's first inner size, used by
+/// `tests/window_screenshots.sh`; absent or unreadable means 1400x900.
+fn window_size_from_env() -> Option<[f32; 2]> {
+    let text = std::env::var("SPALLCAST_WINDOW_SIZE").ok()?;
+    let (w, h) = text.trim().split_once('x')?;
+    let (w, h): (f32, f32) = (w.parse().ok()?, h.parse().ok()?);
+    (w >= 640.0 && h >= 480.0 && w <= 8000.0 && h <= 8000.0).then_some([w, h])
 }
