@@ -406,10 +406,24 @@ fn changes_made_by_another_program_show_up_without_reopening() {
             )
             .unwrap();
     }
-    // The window checks every few seconds; wait past one check, then let it read the plant again.
-    std::thread::sleep(std::time::Duration::from_millis(3300));
-    h.step();
-    settle(&mut h);
+    // The window checks every few seconds and the answer comes back from its data thread: keep
+    // stepping (up to 20 s, for a loaded machine) until the plant has been read again.
+    let started = std::time::Instant::now();
+    while started.elapsed() < std::time::Duration::from_secs(20) {
+        h.step();
+        settle(&mut h);
+        if h.state()
+            .plant()
+            .unwrap()
+            .bearing(&nde)
+            .unwrap()
+            .stage
+            .is_some()
+        {
+            break;
+        }
+        std::thread::sleep(std::time::Duration::from_millis(100));
+    }
     assert_eq!(
         h.state().plant().unwrap().bearing(&nde).unwrap().stage,
         Some(1),

@@ -11,6 +11,14 @@ use crate::FormatError;
 /// (common practice, no source: plant rotating machinery on a walk-around route runs far below this).
 pub const MAX_RPM: f64 = 100_000.0;
 
+/// Earliest `taken_at` accepted: 1 January 1970 UTC. No portable data collector recorded before it; an
+/// earlier time is a clock that was never set.
+pub const EARLIEST_TAKEN_AT: &str = "1970-01-01T00:00:00Z";
+
+/// How far in the future (by this computer's clock) `taken_at` may lie, hours: a day covers any UTC
+/// offset written wrongly and a collector's clock running a little ahead; a later time is refused.
+pub const FUTURE_TOLERANCE_H: i64 = 24;
+
 /// Unit of the numbers in a recording, as the manifest's `units` column gives it.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 pub enum Units {
@@ -54,7 +62,8 @@ impl std::fmt::Display for Units {
 /// The manifest is RFC 4180 CSV, UTF-8, with a header row. Column order is free; names are fixed.
 /// Required: `file` (path relative to the folder, `/` or `\` separated, never absolute and never
 /// through `..`), `point` (point id from the plant file), `taken_at` (RFC 3339 with an offset, e.g.
-/// `2026-05-14T09:31:00+01:00`), `rpm` (shaft speed, r/min, above 0 and at most [`MAX_RPM`]).
+/// `2026-05-14T09:31:00+01:00`; from [`EARLIEST_TAKEN_AT`] up to [`FUTURE_TOLERANCE_H`] hours after
+/// now), `rpm` (shaft speed, r/min, above 0 and at most [`MAX_RPM`]).
 /// Optional (an empty cell means "not given"): `units` (`g` default, `m/s2`, `mV`), `sensitivity`
 /// (mV/g, above 0; required with `mV`), `channel` (1-based, default 1), `sample_rate_hz` (for CSV
 /// waveforms without a rate comment; above 0). Other columns are ignored. A repeated
@@ -63,7 +72,7 @@ impl std::fmt::Display for Units {
 pub struct ManifestRow {
     /// 1-based line number of the row in the manifest (the header is line 1).
     pub line: usize,
-    /// Recording path relative to the route folder, as written.
+    /// Recording path relative to the route folder, as written but with `\` separators turned into `/`.
     pub file: String,
     /// Measurement point id.
     pub point: String,
@@ -262,6 +271,7 @@ fn parse_row(
             ),
         )
     })?;
+    check_taken_at(taken_at, taken_text)?;
     let rpm = positive_number(required(record, cols.rpm, "rpm")?, "rpm")?;
     if rpm > MAX_RPM {
         return Err((
@@ -308,7 +318,7 @@ fn parse_row(
         .transpose()?;
     Ok(ManifestRow {
         line: usize::try_from(line).unwrap_or(usize::MAX),
-        file: file.to_owned(),
+        file: file.replace('\\', "/"),
         point: point.to_owned(),
         taken_at,
         rpm,
@@ -317,6 +327,29 @@ fn parse_row(
         channel,
         sample_rate_hz,
     })
+}
+
+/// A reading time within the plausible range (see [`ManifestRow`]).
+fn check_taken_at(taken_at: DateTime<FixedOffset>, text: &str) -> Result<(), RowError> {
+    let earliest =
+        DateTime::parse_from_rfc3339(EARLIEST_TAKEN_AT).map_or(i64::MIN, |t| t.timestamp());
+    let latest = chrono::Utc::now() + chrono::Duration::hours(FUTURE_TOLERANCE_H);
+    if taken_at.timestamp() < earliest {
+        return Err((
+            "taken_at",
+            format!("`{text}` is before {EARLIEST_TAKEN_AT}: the collector's clock was not set"),
+        ));
+    }
+    if taken_at > latest {
+        return Err((
+            "taken_at",
+            format!(
+                "`{text}` is more than {FUTURE_TOLERANCE_H} h in the future (now is {}): check the collector's clock",
+                chrono::Utc::now().format("%Y-%m-%d %H:%M UTC")
+            ),
+        ));
+    }
+    Ok(())
 }
 
 /// Accepts only a path that stays inside the route folder on any platform.

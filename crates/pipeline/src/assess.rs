@@ -291,30 +291,101 @@ pub struct AssessReport {
 }
 
 /// Assesses every bearing position and life in the store and writes each reading's stage call (with
-/// its evidence and the forecast at that reading) into the stage-call table.
+/// its evidence and the forecast at that reading) into the stage-call table, one transaction per
+/// bearing position.
 pub fn assess_store(store: &mut Store, options: &StageOptions) -> anyhow::Result<AssessReport> {
     let states = store.latest_states().context("listing bearing positions")?;
     let mut report = AssessReport::default();
     for state in &states {
         let lives = assess_position(store, state, options)?;
-        for life in &lives {
-            for p in &life.points {
-                report.readings_skipped += p.skipped.len();
-                for ((id, call), forecast) in p.reading_ids.iter().zip(&p.calls).zip(&p.forecasts) {
-                    let record = StageRecord::new(p.point.clone(), call.clone(), forecast.clone());
-                    let evidence = serde_json::to_value(&record)
-                        .with_context(|| format!("encoding the stage record of reading {id}"))?;
-                    store
-                        .put_stage_call(*id, call.stage, STAGE_VERSION, &evidence)
-                        .with_context(|| format!("storing the stage call of reading {id}"))?;
-                    report.calls_written += 1;
-                }
-            }
-        }
+        report.readings_skipped += store_position_calls(store, state, &lives)?;
+        report.calls_written += lives
+            .iter()
+            .flat_map(|l| &l.points)
+            .map(|p| p.calls.len())
+            .sum::<usize>();
         report.summaries.push(summarize(state, &lives));
         report.positions += 1;
     }
     sort_by_urgency(&mut report.summaries);
+    Ok(report)
+}
+
+/// Writes the stage calls of one position's assessed lives in one transaction (a crash leaves the
+/// position's calls all old or all new). Returns the number of readings left out.
+pub fn store_position_calls(
+    store: &mut Store,
+    state: &BearingState,
+    lives: &[LifeAssessment],
+) -> anyhow::Result<usize> {
+    let mut calls = Vec::new();
+    let mut skipped = 0;
+    for life in lives {
+        for p in &life.points {
+            skipped += p.skipped.len();
+            for ((id, call), forecast) in p.reading_ids.iter().zip(&p.calls).zip(&p.forecasts) {
+                let record = StageRecord::new(p.point.clone(), call.clone(), forecast.clone());
+                let evidence = serde_json::to_value(&record)
+                    .with_context(|| format!("encoding the stage record of reading {id}"))?;
+                calls.push(spallcast_store::NewStageCall {
+                    reading_id: *id,
+                    stage: call.stage,
+                    evidence,
+                });
+            }
+        }
+    }
+    store
+        .put_stage_calls(&calls, STAGE_VERSION)
+        .with_context(|| {
+            format!(
+                "storing the stage calls of {} {}",
+                state.machine, state.position
+            )
+        })?;
+    Ok(skipped)
+}
+
+/// Counts of one run of [`complete_stage_calls`].
+#[derive(Debug, Clone, Copy, Default, Serialize)]
+pub struct CompleteReport {
+    /// Positions re-assessed.
+    pub positions: usize,
+    /// Stage calls written.
+    pub calls_written: usize,
+}
+
+/// Re-assesses only the positions whose stage calls are missing, from another stage-logic version, or
+/// older than their reading's analysis (after an interrupted import, an upgrade, a re-analysis), one
+/// transaction per position. `progress(done, total)` counts positions.
+pub fn complete_stage_calls(
+    store: &mut Store,
+    options: &StageOptions,
+    progress: &mut dyn FnMut(usize, usize),
+) -> anyhow::Result<CompleteReport> {
+    let stale: std::collections::HashSet<i64> = store
+        .positions_with_stale_calls(STAGE_VERSION)
+        .context("finding positions with missing stage calls")?
+        .into_iter()
+        .collect();
+    let mut report = CompleteReport::default();
+    if stale.is_empty() {
+        return Ok(report);
+    }
+    let states = store.latest_states().context("listing bearing positions")?;
+    let total = stale.len();
+    progress(0, total);
+    for state in states.iter().filter(|s| stale.contains(&s.position_id)) {
+        let lives = assess_position(store, state, options)?;
+        store_position_calls(store, state, &lives)?;
+        report.calls_written += lives
+            .iter()
+            .flat_map(|l| &l.points)
+            .map(|p| p.calls.len())
+            .sum::<usize>();
+        report.positions += 1;
+        progress(report.positions, total);
+    }
     Ok(report)
 }
 

@@ -116,6 +116,7 @@ pub fn create_demo_database(
             &spallcast_analysis::stage::StageOptions::default(),
         )
         .context("assessing the demo plant's bearing stages failed")?;
+        store.mark_demo()?;
         progress("assessing stages", 1, 1);
     }
     let import_secs = started.elapsed().as_secs_f64();

@@ -42,10 +42,19 @@ pub const CSV_COLUMNS: [&str; 18] = [
 ];
 
 /// Prefixes an apostrophe to a cell that a spreadsheet would read as a formula (see the module doc).
+///
+/// Spreadsheets skip leading spaces and line breaks before a formula and read the full-width signs
+/// (U+FF1D `＝`, U+FF0B `＋`, U+FF0D `－`, U+FF20 `＠`) as their ASCII forms, so those count too.
 pub fn neutralise(cell: &str) -> std::borrow::Cow<'_, str> {
-    match cell.chars().next() {
-        Some('=' | '+' | '-' | '@' | '\t' | '\r') => std::borrow::Cow::Owned(format!("'{cell}")),
-        _ => std::borrow::Cow::Borrowed(cell),
+    let starts_formula = matches!(cell.chars().next(), Some('\t' | '\r'))
+        || matches!(
+            cell.trim_start().chars().next(),
+            Some('=' | '+' | '-' | '@' | '\u{FF1D}' | '\u{FF0B}' | '\u{FF0D}' | '\u{FF20}')
+        );
+    if starts_formula {
+        std::borrow::Cow::Owned(format!("'{cell}"))
+    } else {
+        std::borrow::Cow::Borrowed(cell)
     }
 }
 
@@ -167,10 +176,21 @@ mod tests {
     #[test]
     fn formula_starters_get_an_apostrophe_and_others_do_not() {
         // The characters are OWASP's list for CSV injection (from memory).
-        for s in ["=1+1", "+1", "-1", "@SUM(A1)", "\tx", "\rx"] {
+        // Spreadsheets also skip leading spaces before a formula and read the full-width signs as
+        // ASCII ones (from memory), so those are neutralised too.
+        for s in [
+            "=1+1",
+            "+1",
+            "-1",
+            "@SUM(A1)",
+            "\tx",
+            "\rx",
+            " =1",
+            "\u{FF1D}1+1",
+        ] {
             assert_eq!(neutralise(s), format!("'{s}"));
         }
-        for s in ["", "IN-P1", "2027-03-08", "a=b", " =1", "'quoted"] {
+        for s in ["", "IN-P1", "2027-03-08", "a=b", "'quoted"] {
             assert_eq!(neutralise(s), s);
         }
     }

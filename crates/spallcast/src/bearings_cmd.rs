@@ -12,7 +12,8 @@ use chrono::{DateTime, Utc};
 use spallcast_analysis::forecast::{Backtest, Projection};
 use spallcast_analysis::stage::StageOptions;
 use spallcast_pipeline::assess::{
-    BearingSummary, LifeAssessment, PointHistory, assess_position, assess_store, utc_from_s,
+    AssessReport, BearingSummary, LifeAssessment, PointHistory, assess_position, assess_store,
+    bearing_summaries, utc_from_s,
 };
 use spallcast_store::Store;
 
@@ -64,14 +65,25 @@ fn projection(p: Option<&Projection>) -> String {
     )
 }
 
+/// Opens the database and brings its analyses up to date (see `crate::refresh`); the store's errors
+/// name the database.
 fn open(db: &std::path::Path) -> anyhow::Result<Store> {
-    Store::open_existing(db).with_context(|| format!("opening the plant database {}", db.display()))
+    crate::refresh::open_and_refresh(db, false)
 }
 
 /// Runs `spallcast bearings`.
 pub fn run_bearings(args: &BearingsArgs) -> anyhow::Result<ExitCode> {
     let mut store = open(&args.db)?;
-    let report = assess_store(&mut store, &StageOptions::default())?;
+    let report = if store.is_read_only() {
+        let summaries = bearing_summaries(&store, &StageOptions::default())?;
+        AssessReport {
+            positions: summaries.len(),
+            summaries,
+            ..AssessReport::default()
+        }
+    } else {
+        assess_store(&mut store, &StageOptions::default())?
+    };
     if args.json {
         let doc = serde_json::json!({ "caution": CAUTION, "bearings": report.summaries });
         println!("{}", serde_json::to_string_pretty(&doc)?);
@@ -125,8 +137,7 @@ pub fn bearings_table(rows: &[BearingSummary]) -> String {
 
 /// Runs `spallcast bearing`.
 pub fn run_bearing(args: &BearingArgs) -> anyhow::Result<ExitCode> {
-    let mut store = open(&args.db)?;
-    assess_store(&mut store, &StageOptions::default())?;
+    let store = open(&args.db)?;
     let states = store.latest_states().context("listing bearing positions")?;
     let wanted = args.id.trim();
     let mut found = None;

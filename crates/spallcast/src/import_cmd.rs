@@ -3,7 +3,6 @@ use std::io::IsTerminal as _;
 use std::path::PathBuf;
 use std::process::ExitCode;
 
-use anyhow::Context as _;
 use spallcast_store::{ImportSummary, ReadingAnalyzer, Store};
 
 /// Arguments of `spallcast import`.
@@ -25,8 +24,8 @@ pub struct ImportArgs {
 /// Runs the import. Exit code 0 when the import ran, even with rejected files; an error when it could
 /// not run (no manifest, bad database).
 pub fn run(args: &ImportArgs, analyzer: &dyn ReadingAnalyzer) -> anyhow::Result<ExitCode> {
-    let mut store = Store::open(&args.db)
-        .with_context(|| format!("cannot open the database {}", args.db.display()))?;
+    // Every error of the store names the database already.
+    let mut store = Store::open(&args.db)?;
     if let Some(plant) = &args.plant {
         let applied = store.apply_plant_file(plant)?;
         if !args.json {
@@ -55,21 +54,17 @@ pub fn run(args: &ImportArgs, analyzer: &dyn ReadingAnalyzer) -> anyhow::Result<
     })?;
     bar.finish_and_clear();
     // Stage calls and forecasts follow the new readings at once, so `bearings`, the window and the
-    // planner see them. A failure here does not undo the import: it is reported and the next
-    // `spallcast bearings` tries again.
-    if summary.new_readings > 0 {
-        match spallcast_pipeline::assess::assess_store(
-            &mut store,
-            &spallcast_analysis::stage::StageOptions::default(),
-        ) {
-            Ok(report) if !args.json => eprintln!(
-                "stage calls updated: {} readings of {} bearing positions",
-                report.calls_written, report.positions
-            ),
-            Ok(_) => {}
-            Err(err) => eprintln!(
-                "spallcast: warning: the stage assessment after the import failed: {err:#}"
-            ),
+    // planner see them; calls missing after an interrupted earlier run are completed too (a re-import
+    // with nothing new still does that). A failure here does not undo the import: it is reported and
+    // the next command that reads the calls tries again.
+    match crate::refresh::refresh(&mut store, args.json) {
+        Ok(report) if !args.json && report.positions > 0 => eprintln!(
+            "stage calls updated: {} readings of {} bearing positions",
+            report.calls_written, report.positions
+        ),
+        Ok(_) => {}
+        Err(err) => {
+            eprintln!("spallcast: warning: the stage assessment after the import failed: {err:#}");
         }
     }
     if args.json {

@@ -9,6 +9,7 @@ mod demo_cmd;
 mod diagnose_cmd;
 mod import_cmd;
 mod plan_cmd;
+mod refresh;
 
 use std::path::PathBuf;
 use std::process::ExitCode;
@@ -57,7 +58,14 @@ fn main() -> ExitCode {
         }
         Some(Command::Bearings(args)) => bearings_cmd::run_bearings(&args),
         Some(Command::Bearing(args)) => bearings_cmd::run_bearing(&args),
-        Some(Command::Plan(args)) => plan_cmd::run(&args),
+        // Stage calls missing or out of date are completed first, so the plan shows today's calls.
+        Some(Command::Plan(args)) => match &args.command {
+            plan_cmd::PlanCommand::Export(e) => refresh::open_and_refresh(&e.db, false),
+        }
+        .and_then(|store| {
+            drop(store);
+            plan_cmd::run(&args)
+        }),
         Some(Command::Demo(args)) => demo_cmd::run(&args),
         None => demo_cmd::open_window(cli.db),
     };

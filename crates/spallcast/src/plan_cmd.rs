@@ -4,7 +4,7 @@
 //! replacement list (CSV, RFC 4180 with formula cells neutralised), the outage calendar (iCalendar,
 //! RFC 5545) or the printable HTML report. The file is written atomically.
 
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 use anyhow::Context as _;
@@ -35,9 +35,13 @@ pub struct ExportArgs {
     /// Output format.
     #[arg(long, value_enum)]
     pub format: FormatArg,
-    /// File to write (replaced atomically if it exists).
+    /// File to write (replaced atomically if it exists). Never the database itself or its -wal/-shm
+    /// files; another database file only with --overwrite.
     #[arg(long, value_name = "PATH")]
     pub out: PathBuf,
+    /// Allow --out to replace another database file (never the one exported from).
+    #[arg(long)]
+    pub overwrite: bool,
     /// The day to plan from (default: today, local time).
     #[arg(long, value_name = "YYYY-MM-DD")]
     pub today: Option<NaiveDate>,
@@ -79,6 +83,7 @@ fn export(args: &ExportArgs) -> anyhow::Result<ExitCode> {
         .today
         .unwrap_or_else(|| chrono::Local::now().date_naive());
     let format = ExportFormat::from(args.format);
+    refuse_to_overwrite_a_database(&args.out, &args.db, args.overwrite)?;
     let summary =
         spallcast_plan::export_database(&args.db, format, &args.out, today, chrono::Utc::now())
             .with_context(|| format!("plan export from {}", args.db.display()))?;
@@ -91,4 +96,56 @@ fn export(args: &ExportArgs) -> anyhow::Result<ExitCode> {
         summary.unplanned
     );
     Ok(ExitCode::SUCCESS)
+}
+
+/// Refuses an output path that is the database `db` (or its `-wal`, `-shm` or `-journal` file), or,
+/// unless `overwrite`, any existing file that is an `SQLite` database.
+pub fn refuse_to_overwrite_a_database(
+    out: &Path,
+    db: &Path,
+    overwrite: bool,
+) -> anyhow::Result<()> {
+    let canonical = |p: &Path| -> Option<PathBuf> {
+        let dir = match p.parent() {
+            Some(d) if !d.as_os_str().is_empty() => d,
+            _ => Path::new("."),
+        };
+        Some(std::fs::canonicalize(dir).ok()?.join(p.file_name()?))
+    };
+    if let (Some(o), Some(d)) = (canonical(out), canonical(db)) {
+        let companions = ["", "-wal", "-shm", "-journal"].map(|suffix| {
+            let mut name = d.as_os_str().to_os_string();
+            name.push(suffix);
+            PathBuf::from(name)
+        });
+        let same_file = std::fs::canonicalize(out)
+            .ok()
+            .zip(std::fs::canonicalize(db).ok())
+            .is_some_and(|(a, b)| a == b);
+        if same_file || companions.contains(&o) {
+            anyhow::bail!(
+                "refusing to write the export to {}: it is the database {} being exported, or one of its \
+                 files (--overwrite never allows that); choose another --out",
+                out.display(),
+                db.display()
+            );
+        }
+    }
+    if !overwrite && is_sqlite_file(out) {
+        anyhow::bail!(
+            "refusing to write the export over {}: it is an SQLite database; choose another --out, or pass \
+             --overwrite to replace it",
+            out.display()
+        );
+    }
+    Ok(())
+}
+
+/// True when the file exists and starts with the `SQLite` header.
+fn is_sqlite_file(path: &Path) -> bool {
+    use std::io::Read as _;
+    let mut head = [0u8; 16];
+    std::fs::File::open(path)
+        .and_then(|mut f| f.read_exact(&mut head))
+        .is_ok_and(|()| &head == b"SQLite format 3\0")
 }

@@ -321,3 +321,318 @@ fn a_full_disk_during_a_plant_file_export_keeps_the_previous_file() {
         "the plant file was damaged"
     );
 }
+
+/// `spallcast ARGS...`, run to completion.
+fn spallcast(args: &[&std::ffi::OsStr]) -> std::process::Output {
+    Command::new(env!("CARGO_BIN_EXE_spallcast"))
+        .args(args)
+        .output()
+        .unwrap()
+}
+
+fn os<S: AsRef<std::ffi::OsStr> + ?Sized>(s: &S) -> &std::ffi::OsStr {
+    s.as_ref()
+}
+
+/// A small imported plant database in `dir`, with its route folder and plant file.
+fn small_database(dir: &Path, name: &str) -> PathBuf {
+    let route = write_route(dir, &format!("{name}-route"), 4, 4096, 9, None);
+    let db = dir.join(name);
+    import_ok(&route, &db, &dir.join("plant.toml"));
+    db
+}
+
+/// Issue 16 item 1: `plan export --out` naming the database (or its WAL, or any other `SQLite` file)
+/// replaced the database with the CSV and said it wrote it.
+#[test]
+fn plan_export_refuses_to_write_over_the_database_or_any_sqlite_file() {
+    let tmp = tempfile::tempdir().unwrap();
+    let db = small_database(tmp.path(), "plant.sqlite");
+    let other = small_database(tmp.path(), "other.sqlite");
+    let before = contents(&db);
+    let other_bytes = std::fs::read(&other).unwrap();
+    let wal = tmp.path().join("plant.sqlite-wal");
+    let targets = [db.clone(), wal, other.clone()];
+    for out in &targets {
+        let o = spallcast(&[
+            os("plan"),
+            os("export"),
+            os("--db"),
+            os(&db),
+            os("--format"),
+            os("csv"),
+            os("--out"),
+            os(out),
+        ]);
+        let err = String::from_utf8_lossy(&o.stderr);
+        assert!(
+            !o.status.success(),
+            "plan export over {} claims success: {}",
+            out.display(),
+            String::from_utf8_lossy(&o.stdout)
+        );
+        let name = out.file_name().unwrap().to_string_lossy();
+        assert!(err.contains(name.as_ref()), "{err}");
+        assert!(err.contains("--overwrite"), "no way out named: {err}");
+    }
+    assert_eq!(contents(&db), before, "the database was damaged");
+    assert_eq!(std::fs::read(&other).unwrap(), other_bytes);
+    // An ordinary output file is still written.
+    let csv = tmp.path().join("list.csv");
+    let o = spallcast(&[
+        os("plan"),
+        os("export"),
+        os("--db"),
+        os(&db),
+        os("--format"),
+        os("csv"),
+        os("--out"),
+        os(&csv),
+    ]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    assert!(csv.is_file());
+}
+
+/// Issue 16 item 2: `spallcast demo --db real.sqlite` replaced a real database without a word.
+#[test]
+fn demo_refuses_to_replace_a_database_that_is_not_a_demo() {
+    let tmp = tempfile::tempdir().unwrap();
+    let db = small_database(tmp.path(), "real.sqlite");
+    let before = contents(&db);
+    let o = spallcast(&[os("demo"), os("--db"), os(&db)]);
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(!o.status.success(), "demo replaced a real database: {err}");
+    assert!(err.contains("real.sqlite"), "{err}");
+    assert!(err.contains("--replace"), "no way out named: {err}");
+    assert_eq!(contents(&db), before);
+    // A file that is not a database at all is refused too.
+    let notes = tmp.path().join("notes.txt");
+    std::fs::write(&notes, "my notes\n").unwrap();
+    let o = spallcast(&[os("demo"), os("--db"), os(&notes)]);
+    assert!(!o.status.success());
+    assert_eq!(std::fs::read_to_string(&notes).unwrap(), "my notes\n");
+}
+
+/// Issue 16 item 3: one reading dated in the year 9999 (stored as year 10000) made every later
+/// command fail. It is refused at the import with its line, as is a time a month ahead; the other
+/// readings import and `bearings` reads them.
+#[test]
+fn an_implausible_reading_time_is_refused_at_the_import_with_its_line() {
+    let tmp = tempfile::tempdir().unwrap();
+    let route = write_route(tmp.path(), "day-t", 4, 4096, 10, None);
+    let manifest = route.join("route.csv");
+    let text = std::fs::read_to_string(&manifest).unwrap();
+    let mut lines: Vec<String> = text.lines().map(str::to_owned).collect();
+    let mut far = lines[2].split(',').map(str::to_owned).collect::<Vec<_>>();
+    far[2] = "9999-12-31T23:59:59-12:00".to_owned();
+    lines[2] = far.join(",");
+    let mut soon = lines[3].split(',').map(str::to_owned).collect::<Vec<_>>();
+    soon[2] = (chrono::Utc::now() + chrono::Duration::days(30)).to_rfc3339();
+    lines[3] = soon.join(",");
+    std::fs::write(&manifest, lines.join("\n") + "\n").unwrap();
+    let db = tmp.path().join("times.db");
+    let summary = import_ok(&route, &db, &tmp.path().join("plant.toml"));
+    assert_eq!(summary["new_readings"].as_u64(), Some(2), "{summary}");
+    let rejected = summary["rejected"].as_array().unwrap();
+    assert_eq!(rejected.len(), 2, "{summary}");
+    for (r, line) in rejected.iter().zip([3, 4]) {
+        assert_eq!(r["line"].as_u64(), Some(line), "{summary}");
+        assert!(
+            r["reason"].as_str().unwrap().contains("taken_at"),
+            "{summary}"
+        );
+    }
+    let bearings = |db: &Path| spallcast(&[os("bearings"), os("--db"), os(db)]);
+    let o = bearings(&db);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+
+    assert!(
+        String::from_utf8_lossy(&o.stdout).contains("HC-M1"),
+        "{}",
+        String::from_utf8_lossy(&o.stdout)
+    );
+}
+
+/// (reading id → (stage, version)) of every stored stage call.
+fn stage_calls(db: &Path) -> std::collections::BTreeMap<i64, (u8, String)> {
+    let conn = rusqlite::Connection::open(db).unwrap();
+    let mut stmt = conn
+        .prepare("SELECT reading_id, stage, version FROM stage_call")
+        .unwrap();
+    stmt.query_map([], |r| Ok((r.get(0)?, (r.get(1)?, r.get(2)?))))
+        .unwrap()
+        .collect::<Result<_, _>>()
+        .unwrap()
+}
+
+/// Issue 16 item 4 (deterministic half; the kill half is in `hardening_crash.rs`): stage calls that
+/// are missing or written by an older stage logic are completed by the next command that reads them:
+/// a re-import with nothing new, or `plan export`.
+#[test]
+fn missing_or_stale_stage_calls_are_completed_by_the_next_command() {
+    let tmp = tempfile::tempdir().unwrap();
+    let route = write_route(tmp.path(), "day-s", 8, 4096, 11, None);
+    let plant = tmp.path().join("plant.toml");
+    let db = tmp.path().join("calls.db");
+    import_ok(&route, &db, &plant);
+    let complete = stage_calls(&db);
+    assert_eq!(complete.len(), 8);
+    let damage = |db: &Path| {
+        let conn = rusqlite::Connection::open(db).unwrap();
+        conn.execute_batch(
+            "DELETE FROM stage_call WHERE reading_id IN (SELECT reading_id FROM stage_call ORDER BY reading_id DESC LIMIT 3);
+             UPDATE stage_call SET version = 'older-stage-logic' WHERE reading_id = (SELECT min(reading_id) FROM stage_call);",
+        )
+        .unwrap();
+    };
+    damage(&db);
+    assert_eq!(stage_calls(&db).len(), 5);
+    let summary = import_ok(&route, &db, &plant);
+    assert_eq!(summary["new_readings"].as_u64(), Some(0), "{summary}");
+    assert_eq!(stage_calls(&db), complete, "a re-import left calls missing");
+
+    damage(&db);
+    let out = tmp.path().join("list.csv");
+    let o = spallcast(&[
+        os("plan"),
+        os("export"),
+        os("--db"),
+        os(&db),
+        os("--format"),
+        os("csv"),
+        os("--out"),
+        os(&out),
+    ]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    assert_eq!(stage_calls(&db), complete, "plan export left calls missing");
+}
+
+/// Issue 16 item 8: a zero-byte file given to a read command was rewritten as an empty database.
+#[test]
+fn read_commands_refuse_a_file_that_is_not_a_spallcast_database() {
+    let tmp = tempfile::tempdir().unwrap();
+    let empty = tmp.path().join("empty.db");
+    std::fs::write(&empty, b"").unwrap();
+    let bare = tmp.path().join("bare.db");
+    rusqlite::Connection::open(&bare)
+        .unwrap()
+        .execute_batch("CREATE TABLE notes (t TEXT);")
+        .unwrap();
+    let bare_bytes = std::fs::read(&bare).unwrap();
+    let out = tmp.path().join("list.csv");
+    for db in [&empty, &bare] {
+        let runs = [
+            spallcast(&[os("bearings"), os("--db"), os(db)]),
+            spallcast(&[
+                os("plan"),
+                os("export"),
+                os("--db"),
+                os(db),
+                os("--format"),
+                os("csv"),
+                os("--out"),
+                os(&out),
+            ]),
+        ];
+        for o in runs {
+            let err = String::from_utf8_lossy(&o.stderr);
+            assert!(!o.status.success(), "accepted {}: {err}", db.display());
+            assert!(err.contains("not a Spallcast database"), "{err}");
+            let name = db.file_name().unwrap().to_string_lossy();
+            assert!(err.contains(name.as_ref()), "{err}");
+        }
+    }
+    assert_eq!(std::fs::metadata(&empty).unwrap().len(), 0);
+    assert_eq!(std::fs::read(&bare).unwrap(), bare_bytes);
+    assert!(!out.exists());
+}
+
+/// Issue 16 item 9: reading a read-only database needs no writes, and an error names the database
+/// once, without repeated text.
+#[test]
+fn read_commands_work_on_a_read_only_database() {
+    let tmp = tempfile::tempdir().unwrap();
+    let made = small_database(tmp.path(), "made.db");
+    let mount = match Tmpfs::mount(&tmp.path().join("ro"), "4m") {
+        Ok(m) => m,
+        Err(why) => {
+            println!("SKIPPED: a read-only file system needs a tmpfs: {why}");
+            return;
+        }
+    };
+    let db = mount.dir.join("readonly.db");
+    std::fs::copy(&made, &db).unwrap();
+    // Stage calls out of date, as after an upgrade: they cannot be completed here.
+    rusqlite::Connection::open(&db)
+        .unwrap()
+        .execute_batch("DELETE FROM stage_call WHERE reading_id = (SELECT min(id) FROM reading);")
+        .unwrap();
+    mount.remount("ro");
+    let o = spallcast(&[os("bearings"), os("--db"), os(&db)]);
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(
+        o.status.success(),
+        "bearings on a read-only database: {err}"
+    );
+    assert!(
+        String::from_utf8_lossy(&o.stdout).contains("HC-M1"),
+        "{}",
+        String::from_utf8_lossy(&o.stdout)
+    );
+    assert_eq!(err.lines().count(), 1, "one warning line: {err}");
+    assert!(
+        err.contains("read-only") && err.contains("readonly.db"),
+        "{err}"
+    );
+    let o = spallcast(&[os("bearing"), os("HC-M1/DE"), os("--db"), os(&db)]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let out = tmp.path().join("list.csv");
+    let o = spallcast(&[
+        os("plan"),
+        os("export"),
+        os("--db"),
+        os(&db),
+        os("--format"),
+        os("csv"),
+        os("--out"),
+        os(&out),
+    ]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    // A write into it fails naming the database once, without repeated text.
+    let later = write_route(tmp.path(), "day-w", 2, 4096, 12, None);
+    let o = import_command(&later, &db, &tmp.path().join("plant.toml"))
+        .output()
+        .unwrap();
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(!o.status.success());
+    assert_eq!(err.matches("readonly.db").count(), 1, "{err}");
+    assert!(err.matches("read").count() <= 2, "repeated text: {err}");
+}
+
+/// Issue 16 item 12: cells a spreadsheet still reads as a formula after leading spaces or line
+/// breaks, or with a full-width sign, are neutralised too.
+#[test]
+fn csv_cells_that_hide_a_formula_are_neutralised() {
+    use spallcast_plan::csv_export::neutralise;
+    for cell in [
+        " =1+1",
+        "  +1",
+        "\n=cmd",
+        "\r\n@x",
+        " \t-2",
+        "\u{FF1D}1+1",
+        "\u{FF0B}1",
+        "\u{FF0D}1",
+        "\u{FF20}x",
+        " \u{FF1D}1",
+    ] {
+        assert!(
+            neutralise(cell).starts_with('\''),
+            "{cell:?} -> {:?}",
+            neutralise(cell)
+        );
+    }
+    for cell in ["HC-M1", "plain text", " spaced", "1.5", ""] {
+        assert_eq!(neutralise(cell), cell);
+    }
+}

@@ -12,6 +12,25 @@ pub enum StoreError {
         /// The file that was opened.
         path: PathBuf,
     },
+    /// An `SQLite` file (or an empty file) without Spallcast's tables, given to a command that only reads.
+    #[error(
+        "{} is not a Spallcast database (an empty file or an SQLite file without Spallcast's tables); \
+         only `spallcast import` and `spallcast demo` create databases",
+        path.display()
+    )]
+    NotSpallcast {
+        /// The file that was opened.
+        path: PathBuf,
+    },
+    /// The database cannot be written (file permissions, a read-only folder or disk).
+    #[error(
+        "the database {} is read-only (its file, folder or disk does not allow writing); nothing was changed",
+        path.display()
+    )]
+    ReadOnly {
+        /// The database file.
+        path: PathBuf,
+    },
     /// The database was written by a newer Spallcast and this one will not touch it.
     #[error(
         "{} was written by a newer Spallcast (schema version {found}; this build understands up to {supported}); \
@@ -112,6 +131,15 @@ fn sqlite_message(err: &rusqlite::Error) -> String {
     } else {
         format!("database error: {err}")
     }
+}
+
+/// True when `SQLite` could not write because the file, folder or disk is read-only, or could not
+/// open the file at all (as on a read-only disk, where the WAL index cannot be created).
+pub(crate) fn is_read_only(err: &rusqlite::Error) -> bool {
+    matches!(
+        err.sqlite_error_code(),
+        Some(rusqlite::ErrorCode::ReadOnly | rusqlite::ErrorCode::CannotOpen)
+    )
 }
 
 /// True when `SQLite` says the file is not a database.

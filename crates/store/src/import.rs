@@ -98,6 +98,8 @@ struct PointCtx {
     factors: Option<FaultFactors>,
     iso_group: MachineGroup,
     iso_support: Support,
+    /// When the position's first recorded bearing life began.
+    first_installed: Option<chrono::NaiveDate>,
 }
 
 /// One manifest row that passed the cheap checks.
@@ -144,7 +146,8 @@ fn load_points(conn: &rusqlite::Connection) -> Result<HashMap<String, PointCtx>>
     let mut stmt = conn.prepare(
         "SELECT pt.tag, pt.id, bp.id, m.tag, bp.position, pt.sensitivity_mv_per_g, m.iso_group, m.iso_support,
                 bt.ftf, bt.bsf, bt.bpfo, bt.bpfi, bt.rolling_elements, bt.element_diameter_mm, bt.pitch_diameter_mm,
-                bt.contact_angle_deg
+                bt.contact_angle_deg,
+                (SELECT min(l.installed) FROM bearing_life l WHERE l.position_id = bp.id)
          FROM point pt JOIN bearing_position bp ON bp.id = pt.position_id JOIN machine m ON m.id = bp.machine_id
          JOIN bearing_type bt ON bt.id = bp.bearing_type_id",
     )?;
@@ -161,10 +164,25 @@ fn load_points(conn: &rusqlite::Connection) -> Result<HashMap<String, PointCtx>>
                 iso_group: machine_group(r.get(6)?),
                 iso_support: support(&r.get::<_, String>(7)?),
                 factors: factors_from_row(r, 8)?,
+                first_installed: r.get(16)?,
             },
         );
     }
     Ok(out)
+}
+
+/// Why a row is refused when it was taken (local date) before its bearing position's first life
+/// began: no life holds it, so it would never be assessed.
+fn before_install(point: &PointCtx, row: &ManifestRow) -> Option<String> {
+    let installed = point.first_installed?;
+    let day = row.taken_at.date_naive();
+    (day < installed).then(|| {
+        format!(
+            "taken {day} (local date), before the bearing {} {} was installed ({installed}): no bearing \
+             life to assess it in; correct taken_at or the plant file's installed date",
+            point.machine, point.position
+        )
+    })
 }
 
 /// True when a manifest path stays inside the folder (relative, no `..`, no root or prefix).
@@ -556,6 +574,10 @@ impl Store {
                             "the file path leaves the route folder".to_owned(),
                             &row,
                         ));
+                    } else if let Some(reason) =
+                        points.get(&row.point).and_then(|p| before_install(p, &row))
+                    {
+                        run.summary.rejected.push(reject(reason, &row));
                     } else if let Some(point) = points.get(&row.point) {
                         let known_hashes = self.hashes_at(
                             point.point_id,
@@ -583,11 +605,16 @@ impl Store {
         // thread writes chunk k. One chunk waits in the channel at most, so memory stays a few chunks
         // of recordings whatever the route's size. Order is kept, so results do not depend on timing.
         let chunk = 4 * rayon::current_num_threads().max(1);
-        let mut chunks = Vec::new();
-        let mut rest = work;
-        while !rest.is_empty() {
-            let tail = rest.split_off(chunk.min(rest.len()));
-            chunks.push(std::mem::replace(&mut rest, tail));
+        // Each chunk is its own right-sized vector (splitting off the tail instead left every chunk with
+        // the capacity of the whole remaining list: memory grew with the square of the rows).
+        let mut chunks = Vec::with_capacity(work.len().div_ceil(chunk));
+        let mut rest = work.into_iter();
+        loop {
+            let batch: Vec<Work> = rest.by_ref().take(chunk).collect();
+            if batch.is_empty() {
+                break;
+            }
+            chunks.push(batch);
         }
         let root = run.root.clone();
         std::thread::scope(|scope| -> Result<()> {

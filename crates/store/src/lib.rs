@@ -49,6 +49,7 @@ mod plant_db;
 mod queries;
 mod records;
 mod schema;
+mod stage_calls;
 
 use std::path::PathBuf;
 use std::time::Duration;
@@ -69,7 +70,8 @@ pub use queries::{
     AnalysisRecord, AreaNode, BearingNode, BearingState, ImportLogEntry, LifeInfo, LifeReadings,
     MachineNode, PlantTree, PointNode, ReadingMeta, RouteDay, TrendPoint, Waveform,
 };
-pub use schema::SCHEMA_VERSION;
+pub use schema::{SCHEMA_VERSION, copy_database, is_demo_database};
+pub use stage_calls::NewStageCall;
 
 /// How long a connection waits for another process's lock before failing with a "busy" error.
 pub const BUSY_TIMEOUT: Duration = Duration::from_secs(5);
@@ -79,6 +81,8 @@ pub const BUSY_TIMEOUT: Duration = Duration::from_secs(5);
 pub struct Store {
     conn: rusqlite::Connection,
     path: PathBuf,
+    /// Opened read-only (see [`Store::open_existing`]): nothing can be written.
+    read_only: bool,
 }
 
 /// Current UTC time as stored text.

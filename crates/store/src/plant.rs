@@ -253,9 +253,17 @@ impl PlantFile {
             path: path.to_path_buf(),
             message: e.to_string(),
         })?;
-        plant.check().map_err(|message| StoreError::PlantFile {
-            path: path.to_path_buf(),
-            message,
+        plant.check().map_err(|mut message| {
+            if let Some(line) = plant
+                .repeated_outage()
+                .and_then(|index| table_name_line(text, "outages", index))
+            {
+                message = format!("line {line}: {message}");
+            }
+            StoreError::PlantFile {
+                path: path.to_path_buf(),
+                message,
+            }
         })?;
         Ok(plant)
     }
@@ -296,6 +304,8 @@ impl PlantFile {
         })?;
         let mut types = HashSet::new();
         for t in &self.bearing_types {
+            check_id("bearing type designation", &t.designation)?;
+            check_geometry(t)?;
             if !types.insert(t.designation.as_str()) {
                 return Err(format!("bearing type {:?} is defined twice", t.designation));
             }
@@ -311,6 +321,7 @@ impl PlantFile {
         let mut machines = HashSet::new();
         let mut points = HashSet::new();
         for area in &self.areas {
+            check_id("area name", &area.name)?;
             if !areas.insert(area.name.as_str()) {
                 return Err(format!("area {:?} is defined twice", area.name));
             }
@@ -318,7 +329,12 @@ impl PlantFile {
                 check_machine(m, &types, &mut machines, &mut points)?;
             }
         }
+        let mut outages = HashSet::new();
         for o in &self.outages {
+            check_id("outage name", &o.name)?;
+            if !outages.insert(o.name.as_str()) {
+                return Err(format!("outage name {:?} is used twice", o.name));
+            }
             if o.end < o.start {
                 return Err(format!("outage {:?} ends before it starts", o.name));
             }
@@ -331,6 +347,85 @@ impl PlantFile {
         }
         Ok(())
     }
+
+    /// Index of the first outage whose name an earlier outage already has.
+    fn repeated_outage(&self) -> Option<usize> {
+        let mut seen = std::collections::HashSet::new();
+        self.outages
+            .iter()
+            .position(|o| !seen.insert(o.name.as_str()))
+    }
+}
+
+/// 1-based line of the `name = ...` key of the `index`-th `[[table]]` in plant-file text (`None` when
+/// the tables are written another way, e.g. inline).
+fn table_name_line(text: &str, table: &str, index: usize) -> Option<usize> {
+    let header = format!("[[{table}]]");
+    let mut current: Option<usize> = None;
+    let mut count = 0;
+    for (i, line) in text.lines().enumerate() {
+        let t = line.trim();
+        if t.starts_with(&header) {
+            current = Some(count);
+            count += 1;
+        } else if t.starts_with('[') {
+            current = None;
+        } else if current == Some(index)
+            && t.strip_prefix("name")
+                .is_some_and(|rest| rest.trim_start().starts_with('='))
+        {
+            return Some(i + 1);
+        }
+    }
+    None
+}
+
+/// An id or name: not empty or blank, and no control characters (NUL, line breaks, ...), which
+/// would break route files, exports and the screen.
+fn check_id(key: &str, value: &str) -> std::result::Result<(), String> {
+    if value.trim().is_empty() {
+        return Err(format!("{key} {value:?} is empty"));
+    }
+    if value.chars().any(char::is_control) {
+        return Err(format!(
+            "{key} {value:?} holds a control character (NUL, line break, tab, ...)"
+        ));
+    }
+    Ok(())
+}
+
+/// Geometry given with a bearing type must be possible even when fault factors are given too (the
+/// factors win for the analysis, but the geometry is shown and exported).
+fn check_geometry(t: &BearingTypeDef) -> std::result::Result<(), String> {
+    let name = &t.designation;
+    let positive = |key: &str, v: Option<f64>| match v {
+        Some(v) if !(v.is_finite() && v > 0.0) => Err(format!(
+            "bearing type {name:?}: {key} = {v} must be a finite number above 0"
+        )),
+        _ => Ok(()),
+    };
+    positive("element_diameter_mm", t.element_diameter_mm)?;
+    positive("pitch_diameter_mm", t.pitch_diameter_mm)?;
+    if t.rolling_elements == Some(0) {
+        return Err(format!(
+            "bearing type {name:?}: rolling_elements must be at least 1"
+        ));
+    }
+    if let Some(a) = t.contact_angle_deg
+        && !(a.is_finite() && (0.0..90.0).contains(&a))
+    {
+        return Err(format!(
+            "bearing type {name:?}: contact_angle_deg = {a} must be from 0 up to (not including) 90 degrees"
+        ));
+    }
+    if let (Some(d), Some(pd)) = (t.element_diameter_mm, t.pitch_diameter_mm)
+        && pd <= d
+    {
+        return Err(format!(
+            "bearing type {name:?}: pitch_diameter_mm = {pd} must be larger than element_diameter_mm = {d}"
+        ));
+    }
+    Ok(())
 }
 
 fn check_machine<'a>(
@@ -339,6 +434,7 @@ fn check_machine<'a>(
     machines: &mut std::collections::HashSet<&'a str>,
     points: &mut std::collections::HashSet<&'a str>,
 ) -> std::result::Result<(), String> {
+    check_id("machine id", &m.id)?;
     if !machines.insert(m.id.as_str()) {
         return Err(format!("machine id {:?} is used twice", m.id));
     }
@@ -350,6 +446,18 @@ fn check_machine<'a>(
     }
     let mut positions = std::collections::HashSet::new();
     for b in &m.bearings {
+        check_id(
+            &format!("machine {:?}: bearing position", m.id),
+            &b.position,
+        )?;
+        if let Some(rpm) = b.nominal_rpm
+            && !(rpm.is_finite() && rpm > 0.0)
+        {
+            return Err(format!(
+                "machine {:?} {}: nominal_rpm = {rpm} must be positive",
+                m.id, b.position
+            ));
+        }
         if !positions.insert(b.position.as_str()) {
             return Err(format!(
                 "machine {:?}: bearing position {:?} is defined twice",
@@ -380,6 +488,7 @@ fn check_machine<'a>(
         }
     }
     for p in &m.points {
+        check_id("point id", &p.id)?;
         if !points.insert(p.id.as_str()) {
             return Err(format!("point id {:?} is used twice", p.id));
         }

@@ -7,7 +7,7 @@ use std::path::{Path, PathBuf};
 
 use rusqlite::{Connection, OpenFlags};
 
-use crate::error::{Result, StoreError, is_busy, is_not_a_database};
+use crate::error::{Result, StoreError, is_busy, is_not_a_database, is_read_only};
 use crate::{BUSY_TIMEOUT, Store};
 
 /// The schema version this build writes. A database with a higher `user_version` is refused.
@@ -18,6 +18,10 @@ pub const SCHEMA_VERSION: i64 = MIGRATIONS.len() as i64;
 /// 16 KiB 342–363/s, 32 KiB 336/s, 64 KiB 367–389/s. 16 KiB keeps most of the gain while a small commit
 /// (a plan entry, a stage call) still rewrites only 16 KiB pages in the WAL.
 const PAGE_SIZE: i64 = 16_384;
+
+/// `PRAGMA application_id` of a database made by `spallcast demo` (ASCII "SPDM"), so the demo command
+/// replaces only its own databases.
+const DEMO_APPLICATION_ID: i64 = 0x5350_444D;
 
 /// Migration `i` brings the schema from version `i` to `i + 1`.
 const MIGRATIONS: &[&str] = &[
@@ -231,10 +235,39 @@ impl Store {
     /// for a database written by a newer build, [`StoreError::Busy`] when another process holds a lock
     /// for longer than [`BUSY_TIMEOUT`].
     pub fn open(path: &Path) -> Result<Store> {
-        Self::open_to_version(path, SCHEMA_VERSION)
+        if path.is_file() && !file_is_writable(path) {
+            return Err(StoreError::ReadOnly {
+                path: path.to_path_buf(),
+            });
+        }
+        let started = std::time::Instant::now();
+        loop {
+            match Self::open_to_version(path, SCHEMA_VERSION) {
+                // Two processes creating or migrating one file at once: SQLite gives the loser an
+                // immediate "busy" on the journal-mode switch or the migration lock without waiting, so
+                // try again for as long as the busy timeout allows.
+                Err(StoreError::Busy { .. }) if started.elapsed() < BUSY_TIMEOUT => {
+                    std::thread::sleep(std::time::Duration::from_millis(20));
+                }
+                Err(StoreError::Sqlite(e)) if is_busy(&e) && started.elapsed() < BUSY_TIMEOUT => {
+                    std::thread::sleep(std::time::Duration::from_millis(20));
+                }
+                Err(StoreError::Database { source, .. }) if is_read_only(&source) => {
+                    return Err(StoreError::ReadOnly {
+                        path: path.to_path_buf(),
+                    });
+                }
+                other => return other,
+            }
+        }
     }
 
-    /// Opens an existing database without creating it.
+    /// Opens an existing Spallcast database without creating or changing it on opening: a missing
+    /// file, an empty file or an `SQLite` file without Spallcast's tables is refused
+    /// ([`StoreError::NotSpallcast`]). A database that cannot be written (file permissions, a
+    /// read-only folder or disk) is opened read-only: every query works, every write fails, and
+    /// [`Store::is_read_only`] says so. An older schema is upgraded as by [`Store::open`] when the
+    /// file is writable.
     pub fn open_existing(path: &Path) -> Result<Store> {
         if !path.is_file() {
             return Err(StoreError::Io {
@@ -242,7 +275,86 @@ impl Store {
                 source: std::io::Error::new(std::io::ErrorKind::NotFound, "no such database file"),
             });
         }
-        Self::open(path)
+        let probe = Self::open_read_only(path)?;
+        let version = probe.schema_version().map_err(|e| probe.named(e))?;
+        let has_tables: bool = probe
+            .conn
+            .query_row(
+                "SELECT EXISTS (SELECT 1 FROM sqlite_schema WHERE type = 'table')",
+                [],
+                |r| r.get(0),
+            )
+            .map_err(|e| classify(e, path))?;
+        if version == 0 || !has_tables {
+            return Err(StoreError::NotSpallcast {
+                path: path.to_path_buf(),
+            });
+        }
+        if version > SCHEMA_VERSION {
+            return Err(StoreError::NewerSchema {
+                path: path.to_path_buf(),
+                found: version,
+                supported: SCHEMA_VERSION,
+            });
+        }
+        if !file_is_writable(path) {
+            if version < SCHEMA_VERSION {
+                return Err(StoreError::Invalid(format!(
+                    "{} is read-only and holds schema version {version}; this build needs {SCHEMA_VERSION}: \
+                     copy it somewhere writable to upgrade it",
+                    path.display()
+                )));
+            }
+            return Ok(probe);
+        }
+        drop(probe);
+        match Self::open(path) {
+            Err(StoreError::ReadOnly { .. }) if version == SCHEMA_VERSION => {
+                Self::open_read_only(path)
+            }
+            other => other,
+        }
+    }
+
+    /// Opens the database read-only. On a read-only disk a WAL database cannot get its shared-memory
+    /// index, so `SQLite` is told the file is immutable there (nobody can write it anyway).
+    fn open_read_only(path: &Path) -> Result<Store> {
+        let flags = OpenFlags::SQLITE_OPEN_READ_ONLY | OpenFlags::SQLITE_OPEN_NO_MUTEX;
+        let try_open = |conn: Connection| -> std::result::Result<Connection, rusqlite::Error> {
+            conn.busy_timeout(BUSY_TIMEOUT)?;
+            conn.pragma_query_value(None, "user_version", |r| r.get::<_, i64>(0))?;
+            conn.query_row("SELECT count(*) FROM sqlite_schema", [], |r| {
+                r.get::<_, i64>(0)
+            })?;
+            Ok(conn)
+        };
+        let conn = match Connection::open_with_flags(path, flags).and_then(try_open) {
+            Ok(c) => c,
+            Err(e) if is_read_only(&e) => {
+                let uri = format!("file:{}?immutable=1", uri_path(path));
+                Connection::open_with_flags(uri, flags | OpenFlags::SQLITE_OPEN_URI)
+                    .and_then(try_open)
+                    .map_err(|e| classify(e, path))?
+            }
+            Err(e) => return Err(classify(e, path)),
+        };
+        Ok(Store {
+            conn,
+            path: path.to_path_buf(),
+            read_only: true,
+        })
+    }
+
+    /// True when the database was opened read-only (see [`Store::open_existing`]).
+    pub fn is_read_only(&self) -> bool {
+        self.read_only
+    }
+
+    /// Marks the database as one made by `spallcast demo` (see [`is_demo_database`]).
+    pub fn mark_demo(&self) -> Result<()> {
+        self.conn
+            .pragma_update(None, "application_id", DEMO_APPLICATION_ID)
+            .map_err(|e| self.named(e.into()))
     }
 
     pub(crate) fn open_to_version(path: &Path, target: i64) -> Result<Store> {
@@ -282,6 +394,7 @@ impl Store {
         let mut store = Store {
             conn,
             path: path.to_path_buf(),
+            read_only: false,
         };
         if version < target {
             store.migrate(target)?;
@@ -371,6 +484,51 @@ impl Store {
         let rows = stmt.query_map([], |r| r.get::<_, String>(0))?;
         Ok(rows.collect::<Result<Vec<_>, _>>()?)
     }
+}
+
+/// True when `path` is a database that `spallcast demo` made (and may therefore replace).
+pub fn is_demo_database(path: &Path) -> bool {
+    let Ok(store) = Store::open_read_only(path) else {
+        return false;
+    };
+    store
+        .conn
+        .pragma_query_value(None, "application_id", |r| r.get::<_, i64>(0))
+        .is_ok_and(|id| id == DEMO_APPLICATION_ID)
+}
+
+/// Copies a database (committed contents, WAL included) to `to` with `SQLite`'s `VACUUM INTO`.
+pub fn copy_database(from: &Path, to: &Path) -> Result<()> {
+    let store = Store::open_read_only(from)?;
+    store
+        .conn
+        .execute("VACUUM INTO ?1", [to.to_string_lossy().as_ref()])
+        .map_err(|e| StoreError::Backup {
+            path: from.to_path_buf(),
+            backup: to.to_path_buf(),
+            message: e.to_string(),
+        })?;
+    Ok(())
+}
+
+/// True when the file can be opened for writing (without creating or truncating it). As root this is
+/// true for a 0444 file, which root can indeed write; false on a read-only disk.
+fn file_is_writable(path: &Path) -> bool {
+    std::fs::OpenOptions::new().write(true).open(path).is_ok()
+}
+
+/// A path for an `SQLite` `file:` URI: `%`, `?` and `#` percent-encoded.
+fn uri_path(path: &Path) -> String {
+    let mut out = String::new();
+    for c in path.to_string_lossy().chars() {
+        match c {
+            '%' => out.push_str("%25"),
+            '?' => out.push_str("%3f"),
+            '#' => out.push_str("%23"),
+            c => out.push(c),
+        }
+    }
+    out
 }
 
 /// Copies the database to `<file>.v<version>.bak` (or `.v<version>.<n>.bak` when that exists) with

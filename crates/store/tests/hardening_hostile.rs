@@ -702,3 +702,153 @@ fn a_recording_larger_than_the_cap_is_refused_while_hashing() {
     assert!(why.contains("larger than 1024 MiB"), "{why}");
     assert_sound(&f.store);
 }
+
+/// Issue 16 item 5: two outages with one name. The second used to replace the first silently.
+#[test]
+fn two_outages_with_one_name_are_refused_naming_file_line_and_name() {
+    let text = format!(
+        "{PLANT}\n[[outages]]\nname = \"Spring stop\"\nstart = \"2026-04-01\"\nend = \"2026-04-03\"\n\n\
+         [[outages]]\nname = \"Spring stop\"\nstart = \"2026-05-01\"\nend = \"2026-05-02\"\n"
+    );
+    let line = text
+        .lines()
+        .enumerate()
+        .filter(|(_, l)| l.contains("\"Spring stop\""))
+        .nth(1)
+        .map(|(i, _)| i + 1)
+        .unwrap();
+    let err = PlantFile::parse(&text, Path::new("/plants/outages.toml")).unwrap_err();
+    let message = err.to_string();
+    assert!(message.contains("/plants/outages.toml"), "{message}");
+    assert!(message.contains("\"Spring stop\""), "{message}");
+    assert!(message.contains("twice"), "{message}");
+    assert!(
+        message.contains(&format!("line {line}")),
+        "no line {line}: {message}"
+    );
+}
+
+/// Issue 16 item 6: values a plant file must not get through, each refused with the file, the key
+/// and the reason.
+#[test]
+fn impossible_plant_values_are_refused_naming_file_key_and_reason() {
+    let geometry_and_factors = "designation = \"HT-1\"\nkind = \"deep-groove ball\"\n\
+         rolling_elements = 9\nelement_diameter_mm = 8.0\npitch_diameter_mm = 39.0\ncontact_angle_deg = 0.0\n\
+         factors = { ftf = 0.4, bsf = 2.3, bpfo = 3.6, bpfi = 5.4 }";
+    let with_type = |geometry: &str| {
+        PLANT.replace(
+            "designation = \"HT-1\"\nkind = \"deep-groove ball\"\nfactors = { ftf = 0.4, bsf = 2.3, bpfo = 3.6, bpfi = 5.4 }",
+            geometry,
+        )
+    };
+    let cases: Vec<(String, &str, &str)> = vec![
+        (
+            PLANT.replace(
+                "    installed = \"2024-01-01\"",
+                "    installed = \"2024-01-01\"\n    nominal_rpm = -1480.0",
+            ),
+            "nominal_rpm",
+            "positive",
+        ),
+        (
+            PLANT.replace(
+                "    installed = \"2024-01-01\"",
+                "    installed = \"2024-01-01\"\n    nominal_rpm = nan",
+            ),
+            "nominal_rpm",
+            "positive",
+        ),
+        (
+            PLANT.replace("nominal_rpm = 1480.0", "nominal_rpm = nan"),
+            "nominal_rpm",
+            "positive",
+        ),
+        (PLANT.replace("id = \"HT-M1\"", "id = \"\""), "id", "empty"),
+        (PLANT.replace("id = \"P1\"", "id = \"  \""), "id", "empty"),
+        (
+            PLANT.replace("id = \"P1\"", "id = \"P\\u00001\""),
+            "id",
+            "control character",
+        ),
+        (
+            PLANT.replace("id = \"P2\"", "id = \"P\\n2\""),
+            "id",
+            "control character",
+        ),
+        (
+            PLANT.replace("position = \"DE\"", "position = \"\""),
+            "position",
+            "empty",
+        ),
+        (
+            with_type(
+                &geometry_and_factors
+                    .replace("contact_angle_deg = 0.0", "contact_angle_deg = 95.0"),
+            ),
+            "contact_angle_deg",
+            "0",
+        ),
+        (
+            with_type(
+                &geometry_and_factors
+                    .replace("pitch_diameter_mm = 39.0", "pitch_diameter_mm = 6.0"),
+            ),
+            "pitch_diameter_mm",
+            "element_diameter_mm",
+        ),
+    ];
+    // The geometry-and-factors type itself is accepted when its geometry is possible.
+    PlantFile::parse(&with_type(geometry_and_factors), Path::new("ok.toml")).unwrap();
+    for (text, key, why) in &cases {
+        let err = PlantFile::parse(text, Path::new("/plants/values.toml"))
+            .expect_err(&format!("accepted a bad {key} ({why})"));
+        let message = err.to_string();
+        assert!(message.contains("/plants/values.toml"), "{message}");
+        assert!(message.contains(key), "does not name {key}: {message}");
+        assert!(message.contains(why), "does not say {why:?}: {message}");
+    }
+}
+
+/// Issue 16 item 10: a reading taken before its bearing was installed has no life to belong to, so
+/// it would never be assessed. The import rejects it with the reason.
+#[test]
+fn a_reading_from_before_the_bearing_was_installed_is_rejected_with_the_reason() {
+    let mut f = fixture();
+    write_wav_f32(&f.route.join("early.wav"), &sine(4096, 25_600.0, 0.4)).unwrap();
+    write_wav_f32(&f.route.join("good.wav"), &sine(4096, 25_600.0, 0.5)).unwrap();
+    write_manifest(
+        &f.route,
+        &[
+            "early.wav,P1,2023-06-01T09:00:00+01:00,1480,,,".to_owned(),
+            row("good.wav", "P2"),
+        ],
+    );
+    let s = import(&mut f);
+    assert_eq!(s.new_readings, 1, "{s:#?}");
+    let why = reason(&s, "early.wav");
+    assert!(why.contains("installed"), "{why}");
+    assert!(why.contains("2024-01-01"), "{why}");
+    assert_eq!(f.store.reading_count().unwrap(), 1);
+    assert_sound(&f.store);
+}
+
+/// Issue 16 item 11: the manifest allows `\` as a separator (files written on Windows); on Linux
+/// the file must still be found.
+#[test]
+fn a_backslash_path_in_the_manifest_finds_the_file() {
+    let mut f = fixture();
+    std::fs::create_dir_all(f.route.join("motor").join("de")).unwrap();
+    write_wav_f32(
+        &f.route.join("motor").join("de").join("h.wav"),
+        &sine(4096, 25_600.0, 0.5),
+    )
+    .unwrap();
+    write_manifest(&f.route, &[row("motor\\de\\h.wav", "P1")]);
+    let s = import(&mut f);
+    assert_eq!(s.new_readings, 1, "{s:#?}");
+    assert!(s.rejected.is_empty(), "{s:#?}");
+    // A second import of the same folder finds the same file as a duplicate.
+    let again = import(&mut f);
+    assert_eq!((again.new_readings, again.duplicates), (0, 1), "{again:#?}");
+    assert_sound(&f.store);
+}
