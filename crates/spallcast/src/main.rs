@@ -10,6 +10,7 @@ mod diagnose_cmd;
 mod import_cmd;
 mod plan_cmd;
 mod refresh;
+mod rules_cmd;
 
 use std::path::PathBuf;
 use std::process::ExitCode;
@@ -45,6 +46,8 @@ enum Command {
     Bearing(bearings_cmd::BearingArgs),
     /// Outage planning: export the replacement list for the planner (CSV, iCalendar, HTML).
     Plan(plan_cmd::PlanArgs),
+    /// Every threshold behind the location, stage and life calls, with its meaning and source.
+    Rules(rules_cmd::RulesArgs),
     /// (Re)create the demo plant database: an invented site with 18 simulated monthly route days.
     Demo(demo_cmd::DemoArgs),
 }
@@ -67,6 +70,7 @@ fn main() -> ExitCode {
             plan_cmd::run(&args)
         }),
         Some(Command::Demo(args)) => demo_cmd::run(&args),
+        Some(Command::Rules(args)) => rules_cmd::run(&args),
         None => demo_cmd::open_window(cli.db),
     };
     match result {
