@@ -8,13 +8,13 @@ cd "$(dirname "$0")"
 secs="${1:-240}"
 shift || true
 targets=("$@")
-[ "${#targets[@]}" -gt 0 ] || targets=(wav csv_waveform uff58_ascii uff58_binary manifest plant_file)
+[ "${#targets[@]}" -gt 0 ] || targets=(wav csv_waveform uff58_ascii uff58_binary manifest plant_file plant_values)
 export RUSTC_BOOTSTRAP=1
 mkdir -p logs
 for t in "${targets[@]}"; do
     dict="dict/$t.dict"
     features=()
-    case "$t" in uff58_*) dict=dict/uff58.dict ;; plant_file) features=(--features plant) ;; esac
+    case "$t" in uff58_*) dict=dict/uff58.dict ;; plant_file|plant_values) features=(--features plant) ;; esac
     mkdir -p "corpus/$t" "artifacts/$t"
     echo "== $t: ${secs} s"
     # (cmin keeps one input per covered edge, -use_counters=0, so the committed corpus stays small.)

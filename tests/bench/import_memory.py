@@ -3,7 +3,8 @@
 
     cargo build --release                       # target/release/spallcast
     pip install numpy scipy
-    python3 tests/bench/import_memory.py        # 1,000 and 20,000 short readings in one folder
+    python3 tests/bench/import_memory.py        # 1,000 and 20,000 short readings in one folder,
+                                                # then one 10-minute 102.4 kHz recording
 
 For each count it generates (seeded; an invented bench plant of 200 points) a route folder of short
 32-bit float WAV recordings (4,096 samples at 25.6 kHz: shaft 1x and noise), imports it into a fresh
@@ -90,6 +91,32 @@ def generate(route: Path, count: int, seed: int) -> None:
         w.writerows(rows)
 
 
+def generate_long(route: Path, minutes: float, seed: int) -> None:
+    """One recording of `minutes` at 102.4 kHz (32-bit float WAV), written in one-second blocks."""
+    rng = np.random.default_rng(seed)
+    route.mkdir(parents=True, exist_ok=True)
+    (route.parent / "plant.toml").write_text(PLANT_HEAD + MACHINE.format(i=0))
+    fs = 102_400
+    n = int(minutes * 60 * fs)
+    path = route / "long.wav"
+    # A float WAV header, then the samples block by block (the generator never holds the record).
+    import struct
+    with open(path, "wb") as fh:
+        data_bytes = 4 * n
+        fh.write(b"RIFF" + struct.pack("<I", 36 + data_bytes) + b"WAVE")
+        fh.write(b"fmt " + struct.pack("<IHHIIHH", 16, 3, 1, fs, 4 * fs, 4, 32))
+        fh.write(b"data" + struct.pack("<I", data_bytes))
+        for start in range(0, n, fs):
+            m = min(fs, n - start)
+            t = (start + np.arange(m)) / fs
+            x = 0.05 * np.sin(2 * np.pi * 24.6 * t) + 0.01 * rng.standard_normal(m)
+            fh.write(x.astype("<f4").tobytes())
+    with open(route / "route.csv", "w", newline="") as fh:
+        w = csv.writer(fh)
+        w.writerow(["file", "point", "taken_at", "rpm", "units"])
+        w.writerow(["long.wav", "MB-M000-DE-H", "2026-11-30T08:00:00+00:00", "1475", "g"])
+
+
 def peak_rss_mb(cmd) -> tuple[float, float]:
     t0 = time.perf_counter()
     child = subprocess.Popen(cmd, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
@@ -106,6 +133,8 @@ def main() -> int:
     ap.add_argument("--spallcast", type=Path, default=ROOT / "target" / "release" / "spallcast")
     ap.add_argument("--counts", type=int, nargs="+", default=[1_000, 20_000])
     ap.add_argument("--seed", type=int, default=20261203)
+    ap.add_argument("--long-minutes", type=float, default=10.0,
+                    help="also import one recording this long at 102.4 kHz (0: skip)")
     a = ap.parse_args()
     if not a.spallcast.exists():
         sys.exit(f"{a.spallcast} not found: run `cargo build --release` first (or pass --spallcast)")
@@ -122,6 +151,15 @@ def main() -> int:
             print(f"{count:>7} readings: peak RSS {rss:8.1f} MB  (wall {wall:.1f} s)")
             shutil.rmtree(folder, ignore_errors=True)
         print(f"largest / smallest peak: {peaks[-1] / peaks[0]:.2f}x")
+        if a.long_minutes > 0:
+            folder = work / "long"
+            generate_long(folder / "route", a.long_minutes, a.seed)
+            rss, wall = peak_rss_mb([str(a.spallcast), "import", str(folder / "route"), "--db",
+                                     str(folder / "bench.sqlite"), "--plant", str(folder / "plant.toml"), "--json"])
+            size_mb = (folder / "route" / "long.wav").stat().st_size / 1e6
+            print(f"one {a.long_minutes:g}-minute 102.4 kHz recording ({size_mb:.0f} MB): peak RSS {rss:8.1f} MB"
+                  f"  (wall {wall:.1f} s)")
+            shutil.rmtree(folder, ignore_errors=True)
     finally:
         shutil.rmtree(work, ignore_errors=True)
     return 0
