@@ -57,6 +57,8 @@ fn fixture() -> (BearingHistory, ReadingCache) {
             rpm: 1480.0,
             scalars: BTreeMap::new(),
             stage: None,
+            damage_db: None,
+            baseline: false,
         });
         let s = ReadingSpectra {
             reading_id: id,
@@ -86,6 +88,7 @@ fn fixture() -> (BearingHistory, ReadingCache) {
         lives_started: Vec::new(),
         stage_call: None,
         forecast: None,
+        notes: Vec::new(),
     };
     (history, cache)
 }

@@ -31,6 +31,10 @@ pub enum Action {
     AcknowledgeCautions,
     /// Close the import summary.
     DismissImportSummary,
+    /// Change the analyst's records on the selected bearing (a note, the baseline marks).
+    Annotate(crate::model::Annotation),
+    /// Move the spectra overlay's newest month to the next (+1) or previous (-1) reading.
+    StepMonth(i32),
     /// Apply the planner's changes to the outage plan.
     ChangePlan(Vec<spallcast_plan::source::PlanChange>),
 }

@@ -15,11 +15,12 @@ use crate::panels::spectra_ui::SpectraPanel;
 use crate::panels::tree_ui::PlantTreePanel;
 use crate::panels::trend_ui::TrendPanel;
 use crate::panels::waveform_ui::WaveformPanel;
+use crate::path_prompt::{Asked, PathPurpose};
 use crate::plan_view::PlanPanel;
 use crate::screenshot::ScreenshotPlan;
 use crate::settings::{PersistedState, View};
 use crate::source::Backend;
-use crate::worker::{DataWorker, ImportJob, Reply, Request};
+use crate::worker::{DataWorker, ImportJob, Request};
 
 /// Key of the persisted state in eframe's storage.
 const STATE_KEY: &str = "spallcast-state";
@@ -44,6 +45,9 @@ pub struct StartOptions {
     pub cautions_acknowledged: bool,
     /// The day the outage plan is drawn from (default: today, local time).
     pub today: Option<chrono::NaiveDate>,
+    /// Never try the native file dialogs: "Open database…" and "Import route folder…" ask for a typed
+    /// path (tests; set from `SPALLCAST_NO_FILE_DIALOG` for a desktop whose portal misbehaves).
+    pub no_file_dialog: bool,
 }
 
 /// A line for the status bar.
@@ -89,6 +93,9 @@ pub struct SpallcastApp {
     pub(crate) last_change_check: std::time::Instant,
     pub(crate) change_check_pending: bool,
     pub(crate) screenshot: Option<ScreenshotPlan>,
+    /// The typed-path prompt, when the file dialog could not be shown.
+    pub(crate) path_prompt: Option<crate::path_prompt::PathPrompt>,
+    no_file_dialog: bool,
     persist: bool,
 }
 
@@ -135,7 +142,7 @@ impl SpallcastApp {
             spectra: SpectraPanel::default(),
             trend: TrendPanel::default(),
             waveform: WaveformPanel::default(),
-            evidence: EvidencePanel,
+            evidence: EvidencePanel::default(),
             plan: None,
             plan_loading: false,
             today: options
@@ -144,6 +151,8 @@ impl SpallcastApp {
             last_change_check: std::time::Instant::now(),
             change_check_pending: false,
             screenshot: options.screenshot.map(ScreenshotPlan::new),
+            path_prompt: None,
+            no_file_dialog: options.no_file_dialog,
             persist,
         };
         if let Some(db) = options.db_path {
@@ -240,21 +249,49 @@ impl SpallcastApp {
     pub fn apply(&mut self, action: Action) {
         match action {
             Action::OpenDatabaseDialog => {
-                let picked = rfd::FileDialog::new()
-                    .set_title("Open a Spallcast database")
-                    .add_filter("Spallcast database", &["sqlite", "db", "sqlite3"])
-                    .pick_file();
-                if let Some(path) = picked {
-                    self.open_database(&path);
+                let start = self
+                    .state
+                    .recent_databases
+                    .first()
+                    .cloned()
+                    .unwrap_or_default();
+                match crate::path_prompt::ask(
+                    PathPurpose::OpenDatabase,
+                    &start,
+                    self.no_file_dialog,
+                    || {
+                        rfd::FileDialog::new()
+                            .set_title("Open a Spallcast database")
+                            .add_filter("Spallcast database", &["sqlite", "db", "sqlite3"])
+                            .pick_file()
+                    },
+                ) {
+                    Asked::Chosen(path) => self.open_database(&path),
+                    Asked::Prompt(prompt) => self.path_prompt = Some(prompt),
+                    Asked::Cancelled => {}
                 }
             }
             Action::OpenDatabase(path) => self.open_database(&path),
             Action::ImportDialog => {
-                let picked = rfd::FileDialog::new()
-                    .set_title("Choose a route folder (with route.csv)")
-                    .pick_folder();
-                if let Some(folder) = picked {
-                    self.start_import(&folder);
+                let start = self
+                    .state
+                    .recent_folders
+                    .first()
+                    .cloned()
+                    .unwrap_or_default();
+                match crate::path_prompt::ask(
+                    PathPurpose::ImportFolder,
+                    &start,
+                    self.no_file_dialog,
+                    || {
+                        rfd::FileDialog::new()
+                            .set_title("Choose a route folder (with route.csv)")
+                            .pick_folder()
+                    },
+                ) {
+                    Asked::Chosen(folder) => self.start_import(&folder),
+                    Asked::Prompt(prompt) => self.path_prompt = Some(prompt),
+                    Asked::Cancelled => {}
                 }
             }
             Action::ImportFolder(folder) => self.start_import(&folder),
@@ -278,6 +315,18 @@ impl SpallcastApp {
                     self.cache.waveforms.insert(id, Slot::Pending);
                 }
             }
+            Action::Annotate(change) => {
+                if let (Some(worker), Some(key)) = (&self.worker, self.selected.clone()) {
+                    worker.send(Request::Annotate(key, change));
+                }
+            }
+            Action::StepMonth(step) => {
+                if let Some(history) = &self.history
+                    && !self.spectra.step_month(history, step)
+                {
+                    self.set_status("no reading that way on this point".to_owned(), false);
+                }
+            }
             Action::AcknowledgeCautions => self.state.cautions_acknowledged = true,
             Action::DismissImportSummary => self.import_summary = None,
             Action::ChangePlan(changes) => {
@@ -298,7 +347,7 @@ impl SpallcastApp {
         self.request_plan();
     }
 
-    fn request_plan(&mut self) {
+    pub(crate) fn request_plan(&mut self) {
         if let Some(worker) = &self.worker {
             self.plan_loading = worker.send(Request::Plan(self.today));
         }
@@ -317,7 +366,7 @@ impl SpallcastApp {
     }
 
     /// Reads the plant (and with it the shown bearing) and the plan again.
-    fn reload_all(&mut self) {
+    pub(crate) fn reload_all(&mut self) {
         if let Some(worker) = &self.worker {
             self.plant_loading = worker.send(Request::Plant);
         }
@@ -338,6 +387,7 @@ impl SpallcastApp {
         self.plan_loading = false;
         self.change_check_pending = false;
         self.cache.clear();
+        crate::path_prompt::remember(&mut self.state.recent_databases, path);
         match DataWorker::start(self.backend.clone(), path, self.ctx.clone()) {
             Ok(worker) => {
                 self.plant_loading = worker.send(Request::Plant);
@@ -366,6 +416,7 @@ impl SpallcastApp {
             );
             return;
         };
+        crate::path_prompt::remember(&mut self.state.recent_folders, folder);
         match ImportJob::start(self.backend.clone(), &db, folder, self.ctx.clone()) {
             Ok(job) => {
                 self.import = Some(job);
@@ -411,124 +462,7 @@ impl SpallcastApp {
         }
     }
 
-    fn on_reply(&mut self, reply: Reply) {
-        match reply {
-            Reply::OpenFailed(e) => {
-                self.plant_loading = false;
-                self.worker = None;
-                self.set_status(format!("could not open the database: {e}"), true);
-            }
-            Reply::Plant(result) => {
-                self.plant_loading = false;
-                match result {
-                    Ok((plant, attention)) => {
-                        let bearings = plant.bearings().count();
-                        self.set_status(
-                            format!("{}: {bearings} bearing positions", self.db_label()),
-                            false,
-                        );
-                        self.plant = Some(plant);
-                        self.attention = Some(attention);
-                        if let Some(key) = self.selected.clone() {
-                            // Reload the bearing shown (after an import its history grew).
-                            self.history_loading = self
-                                .worker
-                                .as_ref()
-                                .is_some_and(|w| w.send(Request::Bearing(key)));
-                        }
-                    }
-                    Err(e) => self.set_status(format!("could not read the plant: {e}"), true),
-                }
-            }
-            Reply::Bearing(key, result) => {
-                if self.selected.as_ref() != Some(&key) {
-                    return;
-                }
-                self.history_loading = false;
-                match result {
-                    Ok(history) => self.history = Some(history),
-                    Err(e) => {
-                        self.set_status(format!("could not load {}: {e}", key.display()), true);
-                    }
-                }
-            }
-            Reply::Spectra(id, result, took) => {
-                let slot = match result {
-                    Ok(s) => {
-                        self.last_spectra_time = Some(took);
-                        Slot::Ready(s)
-                    }
-                    Err(e) => Slot::Failed(e),
-                };
-                self.cache.spectra.insert(id, slot);
-            }
-            Reply::Waveform(id, result) => {
-                let slot = match result {
-                    Ok(w) => Slot::Ready(w),
-                    Err(e) => Slot::Failed(e),
-                };
-                self.cache.waveforms.insert(id, slot);
-            }
-            Reply::ImportProgress(p) => {
-                if let Some(job) = &mut self.import {
-                    job.progress = p;
-                }
-            }
-            Reply::ImportDone(result) => {
-                self.import = None;
-                match &result {
-                    Ok(s) => self.set_status(
-                        format!(
-                            "import done: {} new, {} already present, {} rejected",
-                            s.imported,
-                            s.already_present,
-                            s.rejected.len()
-                        ),
-                        false,
-                    ),
-                    Err(e) => self.set_status(format!("import failed: {e}"), true),
-                }
-                self.import_summary = Some(result);
-                // New readings change stages, lists, histories and forecasts: reload them.
-                self.reload_all();
-            }
-            Reply::Plan(result) => {
-                self.plan_loading = false;
-                match result {
-                    Ok(board) => match &mut self.plan {
-                        Some(panel) => panel.board = board,
-                        None => {
-                            self.plan = Some(PlanPanel {
-                                view: crate::plan_view::PlanView::default(),
-                                board,
-                                forecasts: None,
-                                message: None,
-                            });
-                        }
-                    },
-                    Err(e) => self.set_status(format!("could not read the outage plan: {e}"), true),
-                }
-            }
-            Reply::PlanChanged(message, board) => {
-                self.plan_loading = false;
-                if let Some(panel) = &mut self.plan {
-                    panel.received(message, board);
-                }
-            }
-            Reply::ChangedElsewhere(changed) => {
-                self.change_check_pending = false;
-                if changed && !self.plant_loading {
-                    self.set_status(
-                        "the database was changed by another program; reading it again".to_owned(),
-                        false,
-                    );
-                    self.reload_all();
-                }
-            }
-        }
-    }
-
-    fn db_label(&self) -> String {
+    pub(crate) fn db_label(&self) -> String {
         self.db_path().and_then(Path::file_name).map_or_else(
             || "database".to_owned(),
             |n| n.to_string_lossy().into_owned(),
@@ -567,7 +501,9 @@ impl eframe::App for SpallcastApp {
     }
 
     fn ui(&mut self, ui: &mut egui::Ui, _frame: &mut eframe::Frame) {
-        let actions = self.layout_ui(ui);
+        let mut actions =
+            crate::shortcuts::read(ui.ctx(), self.plant.as_ref(), self.selected.as_ref());
+        actions.extend(self.layout_ui(ui));
         for action in actions {
             self.apply(action);
         }

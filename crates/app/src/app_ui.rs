@@ -43,7 +43,12 @@ impl SpallcastApp {
                 .resizable(true)
                 .default_size(300.0)
                 .show(ui, |ui| {
-                    self.evidence.ui(ui, history, self.plant.as_ref());
+                    let cx = crate::panels::bearing_ui::EvidenceContext {
+                        plant: self.plant.as_ref(),
+                        overlaid: self.spectra.overlay_of(&history.key),
+                        today: self.today,
+                    };
+                    self.evidence.ui(ui, history, &cx, &mut actions);
                 });
         }
         egui::CentralPanel::default().show(ui, |ui| self.view_ui(ui, view, &mut actions));
@@ -51,6 +56,17 @@ impl SpallcastApp {
             cautions_notice_ui(ui.ctx(), &mut actions);
         }
         self.import_summary_ui(ui.ctx(), &mut actions);
+        if let Some(prompt) = &mut self.path_prompt {
+            let recent = match prompt.purpose {
+                crate::path_prompt::PathPurpose::OpenDatabase => &self.state.recent_databases,
+                crate::path_prompt::PathPurpose::ImportFolder => &self.state.recent_folders,
+            };
+            let (action, keep) = crate::path_prompt::prompt_ui(ui.ctx(), prompt, recent);
+            actions.extend(action);
+            if !keep {
+                self.path_prompt = None;
+            }
+        }
         actions
     }
 
@@ -102,7 +118,8 @@ impl SpallcastApp {
                     .and_then(|p| p.bearing(key))
                     .and_then(|b| b.stage);
                 palette::stage_badge_ui(ui, stage);
-                ui.label(key.display());
+                ui.label(key.display())
+                    .on_hover_text(crate::shortcuts::SHORTCUTS_TEXT);
             }
         });
     }

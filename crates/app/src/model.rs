@@ -81,8 +81,10 @@ pub struct BearingNode {
     pub key: BearingKey,
     /// Free-text description, e.g. "Motor non-drive end".
     pub description: String,
-    /// Latest stored stage call (0 = no defect seen, 1..=4), `None` when no call is stored.
+    /// The bearing's call on its current life (0 = no defect seen, 1..=4), `None` when there is none.
     pub stage: Option<u8>,
+    /// Its measurement point ids.
+    pub points: Vec<String>,
 }
 
 impl BearingNode {
@@ -111,6 +113,10 @@ pub struct ReadingSummary {
     pub scalars: BTreeMap<String, f64>,
     /// Stage reached at this reading, when a stage call is stored for it.
     pub stage: Option<u8>,
+    /// The damage index of that call, dB over the life's baseline (what the forecast projects).
+    pub damage_db: Option<f64>,
+    /// The analyst marked it as part of its life's baseline.
+    pub baseline: bool,
 }
 
 impl ReadingSummary {
@@ -135,8 +141,45 @@ impl ReadingSummary {
 pub struct StageCallView {
     /// Stage 0 (no defect seen) to 4.
     pub stage: u8,
+    /// The point whose call governs (the highest stage among the bearing's points).
+    pub point: String,
+    /// When that point's reading was taken.
+    pub taken_at: chrono::DateTime<chrono::Utc>,
+    /// Every point with a call on the current life (what the call rests on).
+    pub points: Vec<String>,
     /// Evidence sentences, in the order the stage logic gave them.
     pub evidence: Vec<String>,
+}
+
+/// An analyst's note on a bearing or one of its readings.
+#[derive(Debug, Clone, PartialEq)]
+pub struct NoteView {
+    /// The day it refers to.
+    pub on_day: NaiveDate,
+    /// observation, lubrication or maintenance.
+    pub kind: String,
+    /// The text.
+    pub text: String,
+    /// The reading it is about, if any.
+    pub reading: Option<ReadingId>,
+}
+
+/// A change to the analyst's own records on a bearing.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Annotation {
+    /// Add a note.
+    AddNote {
+        /// The day it refers to.
+        on_day: NaiveDate,
+        /// observation, lubrication or maintenance.
+        kind: String,
+        /// The text.
+        text: String,
+        /// The reading it is about, if any.
+        reading: Option<ReadingId>,
+    },
+    /// These readings (of one life) form its baseline; empty clears the marks.
+    SetBaseline(Vec<ReadingId>),
 }
 
 /// A stored replacement forecast.
@@ -148,6 +191,8 @@ pub struct ForecastView {
     pub earliest: NaiveDate,
     /// Upper end of the forecast interval.
     pub latest: NaiveDate,
+    /// When the risk of stage 4 begins (the damage index reaching the stage-4 level), if projected.
+    pub risk_from: Option<NaiveDate>,
 }
 
 /// Everything the bearing views need about one bearing, except samples and spectra.
@@ -167,10 +212,12 @@ pub struct BearingHistory {
     pub readings: Vec<ReadingSummary>,
     /// Start of each bearing life (the first is the first install), oldest first.
     pub lives_started: Vec<NaiveDate>,
-    /// The latest stage call, if the pipeline stored one.
+    /// The bearing's call on its current life, if the pipeline stored one.
     pub stage_call: Option<StageCallView>,
-    /// The latest forecast, if the pipeline stored one.
+    /// The forecast of that call, if the pipeline stored one.
     pub forecast: Option<ForecastView>,
+    /// The analyst's notes on the bearing, oldest day first.
+    pub notes: Vec<NoteView>,
 }
 
 impl BearingHistory {
@@ -369,6 +416,8 @@ pub struct Attention {
     pub forecasts_stored: bool,
     /// Files rejected by imports.
     pub rejected: Vec<RejectedFile>,
+    /// Points read on the previous route day but not on the latest (missed on the last route), by id.
+    pub not_collected: Vec<String>,
 }
 
 /// Progress of a running import.

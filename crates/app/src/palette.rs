@@ -98,6 +98,9 @@ pub const ZONE_LINE: Color32 = Color32::from_rgb(0x8a, 0x6d, 0x3b);
 /// Replacement event line colour.
 pub const REPLACEMENT_LINE: Color32 = Color32::from_rgb(0x33, 0x33, 0x33);
 
+/// The analyst's notes on the life trend.
+pub const NOTE_LINE: Color32 = Color32::from_rgb(0x1f, 0x7a, 0x6a);
+
 /// Forecast projection colour.
 pub const FORECAST: Color32 = Color32::from_rgb(0x6e, 0x43, 0xbf);
 

@@ -70,6 +70,7 @@ pub fn options_from_env(db_path: &Path) -> anyhow::Result<StartOptions> {
         cautions_acknowledged: screenshot.is_some(),
         screenshot,
         today: None,
+        no_file_dialog: std::env::var_os(crate::path_prompt::NO_FILE_DIALOG_ENV).is_some(),
     })
 }
 

@@ -250,6 +250,10 @@ pub struct PersistedState {
     pub cautions_acknowledged: bool,
     /// Indicators drawn in the life trend (scalar names); empty means the default set.
     pub trend_indicators: Vec<String>,
+    /// Databases opened, newest first (offered where no file dialog can be shown).
+    pub recent_databases: Vec<String>,
+    /// Route folders imported, newest first.
+    pub recent_folders: Vec<String>,
 }
 
 #[cfg(test)]

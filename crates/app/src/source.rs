@@ -10,8 +10,8 @@ use spallcast_plan::PlanBoard;
 use spallcast_plan::source::PlanChange;
 
 use crate::model::{
-    Attention, BearingHistory, BearingKey, ImportProgress, ImportSummary, PlantTree, ReadingId,
-    ReadingSpectra, Waveform,
+    Annotation, Attention, BearingHistory, BearingKey, ImportProgress, ImportSummary, PlantTree,
+    ReadingId, ReadingSpectra, Waveform,
 };
 
 /// A read connection to one plant database. Not `Sync`: each worker thread opens its own.
@@ -35,6 +35,9 @@ pub trait PlantSource: Send {
     /// Whether another connection (a command-line import, a second window) changed the database since
     /// the last call.
     fn changed_elsewhere(&mut self) -> anyhow::Result<bool>;
+    /// Changes the analyst's records on a bearing (a note, the baseline marks; the bearing's stage
+    /// calls are recomputed after a baseline change); returns what was done in words.
+    fn annotate(&mut self, key: &BearingKey, change: &Annotation) -> anyhow::Result<String>;
 }
 
 /// Opens sources, imports route folders and computes spectra. Shared by every worker thread.

@@ -9,12 +9,13 @@ use spallcast_analysis::forecast::Lubrication;
 use spallcast_analysis::record::StageRecord;
 use spallcast_analysis::{FaultFactors, FaultFrequencies, MachineGroup, SpectrumEngine, Support};
 use spallcast_model::units::date_of_unix_s;
+use spallcast_plan::source::bearing_calls;
 use spallcast_store::{ReadingAnalyzer, Store};
 
 use crate::model::{
-    AreaNode, Attention, BearingHistory, BearingKey, BearingNode, ChangedBearing, DueBearing,
-    ForecastView, ImportProgress, ImportSummary, MachineNode, PlantTree, ReadingId, ReadingSpectra,
-    ReadingSummary, RejectedFile, Spectrum, StageCallView, Waveform,
+    Annotation, AreaNode, Attention, BearingHistory, BearingKey, BearingNode, ChangedBearing,
+    DueBearing, ForecastView, ImportProgress, ImportSummary, MachineNode, NoteView, PlantTree,
+    ReadingId, ReadingSpectra, ReadingSummary, RejectedFile, Spectrum, StageCallView, Waveform,
 };
 use crate::source::{Backend, PlantSource};
 
@@ -228,10 +229,11 @@ impl StoreSource {
 impl PlantSource for StoreSource {
     fn plant(&mut self) -> anyhow::Result<PlantTree> {
         let tree = self.store.plant_tree()?;
-        let states = self.store.latest_states()?;
-        let stage_by_position: HashMap<i64, u8> = states
-            .iter()
-            .filter_map(|s| Some((s.position_id, s.latest_stage.as_ref()?.stage)))
+        // The bearing's call (the same rule as the command line and the planner's export); a
+        // bearing just replaced has none until its new life is read.
+        let stage_by_position: HashMap<i64, u8> = bearing_calls(&self.store)?
+            .into_iter()
+            .map(|(position, call)| (position, call.stage))
             .collect();
         self.positions.clear();
         let mut areas = Vec::with_capacity(tree.areas.len());
@@ -259,6 +261,7 @@ impl PlantSource for StoreSource {
                         key,
                         description: b.description.clone(),
                         stage: stage_by_position.get(&b.position_id).copied(),
+                        points: b.points.iter().map(|p| p.tag.clone()).collect(),
                     });
                 }
                 machines.push(MachineNode {
@@ -283,9 +286,18 @@ impl PlantSource for StoreSource {
         let latest_day = days.first().map(|d| d.day);
         let previous_day = days.get(1).map(|d| d.day);
         let mut changed = Vec::new();
+        let mut not_collected = Vec::new();
         if let (Some(latest), Some(previous)) = (latest_day, previous_day) {
             let now = self.store.readings_of_day(latest)?;
             let before = self.store.readings_of_day(previous)?;
+            let read_now: std::collections::BTreeSet<&str> =
+                now.iter().map(|r| r.point.as_str()).collect();
+            let missed: std::collections::BTreeSet<&str> = before
+                .iter()
+                .map(|r| r.point.as_str())
+                .filter(|p| !read_now.contains(p))
+                .collect();
+            not_collected = missed.into_iter().map(str::to_owned).collect();
             let mut by_key: BTreeMap<
                 BearingKey,
                 (
@@ -345,11 +357,15 @@ impl PlantSource for StoreSource {
         }
         let mut due = Vec::new();
         let mut forecasts_stored = false;
+        let calls = bearing_calls(&self.store)?;
         for state in self.store.latest_states()? {
-            let Some(call) = &state.latest_stage else {
+            let Some(call) = calls.get(&state.position_id) else {
                 continue;
             };
-            if let Some(forecast) = record_of(call).as_ref().and_then(forecast_from) {
+            if state.life.as_ref().is_none_or(|l| l.removed.is_some()) {
+                continue;
+            }
+            if let Some(forecast) = call.record.as_ref().and_then(forecast_from) {
                 forecasts_stored = true;
                 due.push(DueBearing {
                     key: BearingKey {
@@ -382,6 +398,7 @@ impl PlantSource for StoreSource {
             due,
             forecasts_stored,
             rejected,
+            not_collected,
         })
     }
 
@@ -390,7 +407,6 @@ impl PlantSource for StoreSource {
         let lives = self.store.lives(info.id)?;
         let metas = self.store.readings_of_position(info.id)?;
         let mut readings = Vec::with_capacity(metas.len());
-        let mut latest_call = None;
         for meta in metas {
             let scalars = self
                 .store
@@ -399,9 +415,12 @@ impl PlantSource for StoreSource {
                 .unwrap_or_default();
             let call = self.stage_of(meta.id)?;
             let stage = call.as_ref().map(|c| c.stage);
-            if call.is_some() {
-                latest_call = call;
-            }
+            let damage_db = call
+                .as_ref()
+                .and_then(record_of)
+                .map(|r| r.call.damage_index_db)
+                .filter(|d| d.is_finite());
+            let baseline = meta.baseline;
             readings.push(ReadingSummary {
                 id: meta.id,
                 point: meta.point,
@@ -409,18 +428,39 @@ impl PlantSource for StoreSource {
                 rpm: meta.shaft_hz * 60.0,
                 scalars,
                 stage,
+                damage_db,
+                baseline,
             });
         }
         readings.sort_by_key(|r| r.taken_at);
-        let record = latest_call.as_ref().and_then(record_of);
-        let stage_call = latest_call.as_ref().map(|c| StageCallView {
+        // The bearing's one call: the governing point's latest call on the current life.
+        let call = bearing_calls(&self.store)?.remove(&info.id);
+        let stage_call = call.as_ref().map(|c| StageCallView {
             stage: c.stage,
-            evidence: record
+            point: c.point.clone(),
+            taken_at: c.taken_at,
+            points: c.points.clone(),
+            evidence: c
+                .record
                 .as_ref()
                 .map(StageRecord::sentences)
                 .unwrap_or_default(),
         });
-        let forecast = record.as_ref().and_then(forecast_from);
+        let forecast = call
+            .as_ref()
+            .and_then(|c| c.record.as_ref())
+            .and_then(forecast_from);
+        let notes = self
+            .store
+            .notes(info.id)?
+            .into_iter()
+            .map(|n| NoteView {
+                on_day: n.on_day,
+                kind: n.kind.as_str().to_owned(),
+                text: n.text,
+                reading: n.reading_id,
+            })
+            .collect();
         Ok(BearingHistory {
             key: key.clone(),
             factors: info.factors,
@@ -431,6 +471,7 @@ impl PlantSource for StoreSource {
             lives_started: lives.iter().map(|l| l.installed).collect(),
             stage_call,
             forecast,
+            notes,
         })
     }
 
@@ -473,6 +514,52 @@ impl PlantSource for StoreSource {
         (message, board.map_err(anyhow::Error::from))
     }
 
+    fn annotate(&mut self, key: &BearingKey, change: &Annotation) -> anyhow::Result<String> {
+        let info = self.position(key)?;
+        match change {
+            Annotation::AddNote {
+                on_day,
+                kind,
+                text,
+                reading,
+            } => {
+                let kind = spallcast_store::NoteKind::parse(kind)
+                    .with_context(|| format!("{kind:?} is not a kind of note"))?;
+                self.store.add_note(&spallcast_store::NewNote {
+                    position_id: info.id,
+                    reading_id: *reading,
+                    on_day: *on_day,
+                    kind,
+                    text: text.clone(),
+                })?;
+                Ok(format!(
+                    "note ({kind}, {on_day}) added to {}",
+                    key.display()
+                ))
+            }
+            Annotation::SetBaseline(ids) => {
+                self.store.set_baseline(info.id, ids)?;
+                spallcast_pipeline::assess::complete_stage_calls(
+                    &mut self.store,
+                    &spallcast_analysis::stage::StageOptions::default(),
+                    &mut |_, _| {},
+                )?;
+                Ok(if ids.is_empty() {
+                    format!(
+                        "{}: baseline marks cleared; stage calls recomputed",
+                        key.display()
+                    )
+                } else {
+                    format!(
+                        "{}: {} readings form the baseline; stage calls recomputed",
+                        key.display(),
+                        ids.len()
+                    )
+                })
+            }
+        }
+    }
+
     fn changed_elsewhere(&mut self) -> anyhow::Result<bool> {
         let version = self.store.data_version()?;
         let changed = self.data_version.is_some_and(|v| v != version);
@@ -500,12 +587,14 @@ pub fn record_of(call: &spallcast_store::StageCall) -> Option<StageRecord> {
 /// The window's view of a record's forecast: the `replace_by` projection as dates (the interval's
 /// ends fall back to the central date when open). `None` without a `replace_by`.
 pub fn forecast_from(record: &StageRecord) -> Option<ForecastView> {
-    let p = record.forecast.as_ref()?.replace_by?;
+    let forecast = record.forecast.as_ref()?;
+    let p = forecast.replace_by?;
     let central = date_of_unix_s(p.t_s)?;
     Some(ForecastView {
         replace_by: central,
         earliest: date_of_unix_s(p.lo_s).unwrap_or(central),
         latest: p.hi_s.and_then(date_of_unix_s).unwrap_or(central),
+        risk_from: forecast.risk_from.and_then(|r| date_of_unix_s(r.t_s)),
     })
 }
 

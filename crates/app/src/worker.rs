@@ -15,8 +15,8 @@ use spallcast_plan::PlanBoard;
 use spallcast_plan::source::PlanChange;
 
 use crate::model::{
-    Attention, BearingHistory, BearingKey, ImportProgress, ImportSummary, PlantTree, ReadingId,
-    SharedSpectra, Waveform,
+    Annotation, Attention, BearingHistory, BearingKey, ImportProgress, ImportSummary, PlantTree,
+    ReadingId, SharedSpectra, Waveform,
 };
 use crate::source::{Backend, PlantSource};
 
@@ -37,6 +37,8 @@ pub enum Request {
     ChangePlan(NaiveDate, Vec<PlanChange>),
     /// Has another process changed the database?
     CheckForChanges,
+    /// Change the analyst's records on a bearing (a note, the baseline marks).
+    Annotate(BearingKey, Annotation),
 }
 
 /// Results from the workers.
@@ -58,6 +60,8 @@ pub enum Reply {
     ImportDone(Result<ImportSummary, String>),
     /// The outage plan.
     Plan(Result<PlanBoard, String>),
+    /// A note or baseline change was stored (or refused), in words.
+    Annotated(BearingKey, Result<String, String>),
     /// The planner's changes were applied: what was done, in words, and the plan read again.
     PlanChanged(String, Result<PlanBoard, String>),
     /// Whether another process changed the database since the last check.
@@ -179,6 +183,9 @@ fn handle(backend: &dyn Backend, source: &mut dyn PlantSource, request: Request)
         // A failed check is not worth a message: the next one tries again.
         Request::CheckForChanges => {
             Reply::ChangedElsewhere(source.changed_elsewhere().unwrap_or(false))
+        }
+        Request::Annotate(key, change) => {
+            Reply::Annotated(key.clone(), source.annotate(&key, &change).map_err(text))
         }
     }
 }

@@ -111,7 +111,11 @@ fn dragging_a_bearing_onto_an_outage_stores_the_plan() {
     assert_eq!(board.tasks_in(spring).len(), 1);
     assert!(board.open_needs().iter().all(|n| n.life.life_id != p1));
     let msg = h.state().panel.message.clone().unwrap();
-    assert!(msg.contains("planned bearing life"), "{msg}");
+    // Status lines name the bearing and the outage, never internal ids (issue 17 item 6).
+    assert!(
+        msg.contains("planned IN-P1 MNDE in \"Spring intake shutdown\""),
+        "{msg}"
+    );
     assert!(
         !msg.contains("Warning"),
         "a good slot has no warning: {msg}"

@@ -12,8 +12,10 @@ use common::{
     BEARING_LABEL, BPFO_ORDERS, DAYS, EVIDENCE, LIFT_OUTAGE, REPLACE_BY, RISK_FROM, RPM, STAGES,
     build_fixture, drag_and_drop, harness, harness_on, settle,
 };
+use eframe::egui;
 use egui_kittest::kittest::Queryable;
 use spallcast_app::model::BearingKey;
+use spallcast_app::path_prompt::PATH_FIELD_LABEL;
 use spallcast_app::{CAUTION_LINE, NOTICE_BUTTON, NOTICE_TITLE, View};
 
 fn de_key() -> BearingKey {
@@ -221,6 +223,20 @@ fn evidence_trend_and_waveform_views_show_the_bearing() {
         t.forecast,
         "the forecast stored with the latest call is projected"
     );
+    // Issue 17 item 5: the projection to the stage-3/4 levels is drawn, no line is joined across
+    // the replacement (the January reading is on the old life), and colours are fixed per indicator.
+    assert!(t.projection, "the damage-index projection is drawn");
+    assert!(!t.replace_now, "stage {} is not 'replace now'", STAGES[3]);
+    for (key, n) in &t.segments {
+        assert_eq!(*n, 2, "{key}: one segment per life, {:?}", t.segments);
+    }
+    for (key, colour) in &t.colours {
+        assert_eq!(
+            *colour,
+            spallcast_app::panels::trend_ui::indicator_colour(key),
+            "{key}"
+        );
+    }
 
     h.get_by_label("Waveform").click();
     h.step();
@@ -252,6 +268,264 @@ fn opening_a_missing_database_reports_the_file() {
         status.text
     );
     assert!(h.state().plant().is_none());
+}
+
+/// Replaces the text of the (only) text field.
+fn retype(h: &mut egui_kittest::Harness<'static, spallcast_app::SpallcastApp>, text: &str) {
+    h.get_by_role_and_label(egui::Role::TextInput, PATH_FIELD_LABEL)
+        .focus();
+    h.run_steps(1);
+    h.key_press(egui::Key::End);
+    h.run_steps(1);
+    for _ in 0..300 {
+        h.key_press(egui::Key::Backspace);
+    }
+    h.get_by_role_and_label(egui::Role::TextInput, PATH_FIELD_LABEL)
+        .type_text(text);
+    h.run_steps(2);
+}
+
+/// Issue 17 item 7: where no file-dialog service runs, "Open database…" did nothing. It asks for a
+/// typed path, says why, refuses a wrong path with the reason, and opens the right one; the path is
+/// then offered as recent.
+#[test]
+fn open_database_without_a_file_dialog_asks_for_a_typed_path() {
+    let fx = build_fixture();
+    let dir = tempfile::tempdir().unwrap();
+    let mut h = harness(&dir.path().join("nothing-here.sqlite"), true);
+    settle(&mut h);
+    assert!(h.state().plant().is_none());
+    h.get_by_label("Open database…").click();
+    h.run_steps(3);
+    assert!(
+        h.query_by_label(PATH_FIELD_LABEL).is_some(),
+        "the prompt is shown"
+    );
+    assert!(
+        h.query_by_label_contains("turned off").is_some(),
+        "the prompt says why there is no dialog"
+    );
+    // The prompt starts on the most recent database (the missing one, opened at start).
+    let field = h.get_by_role_and_label(egui::Role::TextInput, PATH_FIELD_LABEL);
+    assert_eq!(
+        field.value().as_deref(),
+        Some(
+            dir.path()
+                .join("nothing-here.sqlite")
+                .display()
+                .to_string()
+                .as_str()
+        )
+    );
+    retype(&mut h, &dir.path().display().to_string());
+    h.get_by_label("Open this database").click();
+    h.run_steps(2);
+    assert!(
+        h.query_by_label_contains("is a folder").is_some(),
+        "a folder is refused with the reason"
+    );
+    h.get_by_label("Cancel").click();
+    h.run_steps(2);
+    assert!(
+        h.query_by_label(PATH_FIELD_LABEL).is_none(),
+        "cancel closes the prompt"
+    );
+
+    h.get_by_label("Open database…").click();
+    h.run_steps(2);
+    retype(&mut h, &fx.db.display().to_string());
+    h.get_by_label("Open this database").click();
+    h.run_steps(2);
+    settle(&mut h);
+    assert!(
+        h.state().plant().is_some(),
+        "the typed database opened: {:?}; field {:?}",
+        h.state().status(),
+        h.query_by_role_and_label(egui::Role::TextInput, PATH_FIELD_LABEL)
+            .and_then(|n| n.value())
+    );
+    assert_eq!(h.state().db_path(), Some(fx.db.as_path()));
+    assert_eq!(
+        h.state().state.recent_databases.first().map(String::as_str),
+        Some(fx.db.display().to_string().as_str())
+    );
+}
+
+/// Issue 17 item 8: keyboard shortcuts for the next / previous bearing and month.
+#[test]
+fn alt_arrows_step_through_bearings_and_months() {
+    let fx = build_fixture();
+    let mut h = harness(&fx.db, true);
+    settle(&mut h);
+    let keys: Vec<BearingKey> = h
+        .state()
+        .plant()
+        .unwrap()
+        .bearings()
+        .map(|b| b.key.clone())
+        .collect();
+    assert!(keys.len() >= 2);
+    h.state_mut()
+        .apply(spallcast_app::actions::Action::SelectBearing(
+            keys[0].clone(),
+        ));
+    settle(&mut h);
+    h.key_press_modifiers(egui::Modifiers::ALT, egui::Key::ArrowDown);
+    settle(&mut h);
+    assert_eq!(
+        h.state().selected_bearing(),
+        Some(&keys[1]),
+        "Alt+Down: the next bearing"
+    );
+    h.key_press_modifiers(egui::Modifiers::ALT, egui::Key::ArrowUp);
+    settle(&mut h);
+    assert_eq!(h.state().selected_bearing(), Some(&keys[0]), "Alt+Up: back");
+    h.key_press_modifiers(egui::Modifiers::ALT, egui::Key::ArrowUp);
+    settle(&mut h);
+    assert_eq!(
+        h.state().selected_bearing(),
+        Some(&keys[0]),
+        "stops at the first"
+    );
+
+    // Months: on the spectra view the newest overlaid reading steps back and forth.
+    h.state_mut()
+        .apply(spallcast_app::actions::Action::ShowView(View::Spectra));
+    settle(&mut h);
+    let before = h.state().spectra_panel().selected.clone();
+    let newest = *before.last().expect("an overlay");
+    h.key_press_modifiers(egui::Modifiers::ALT, egui::Key::ArrowLeft);
+    settle(&mut h);
+    let after = h.state().spectra_panel().selected.clone();
+    assert_ne!(
+        after.last(),
+        Some(&newest),
+        "Alt+Left: an earlier month: {before:?} -> {after:?}"
+    );
+    h.key_press_modifiers(egui::Modifiers::ALT, egui::Key::ArrowRight);
+    settle(&mut h);
+    assert_eq!(
+        h.state().spectra_panel().selected.last(),
+        Some(&newest),
+        "Alt+Right: back to the newest"
+    );
+}
+
+/// Issue 17 item 8: the plant tree's Find matches point ids too, and says when nothing matches.
+#[test]
+fn find_matches_point_ids_and_says_no_match() {
+    let fx = build_fixture();
+    let mut h = harness(&fx.db, true);
+    settle(&mut h);
+    assert!(h.query_by_label_contains("Extract fan").is_some());
+    let find = spallcast_app::panels::tree_ui::FIND_LABEL;
+    h.get_by_role_and_label(egui::Role::TextInput, find).focus();
+    h.run_steps(1);
+    // Only the point id TP-P1-DE-H contains "p1-de-h" (not a machine id, name or position).
+    h.get_by_role_and_label(egui::Role::TextInput, find)
+        .type_text("p1-de-h");
+    h.run_steps(3);
+    assert!(
+        h.query_by_label_contains("Lift pump 1").is_some(),
+        "the machine of the matching point is shown"
+    );
+    assert!(
+        h.query_by_label_contains("Extract fan").is_none(),
+        "machines without a match are hidden"
+    );
+    for _ in 0..20 {
+        h.key_press(egui::Key::Backspace);
+    }
+    h.get_by_role_and_label(egui::Role::TextInput, find)
+        .type_text("zzz");
+    h.run_steps(3);
+    assert!(
+        h.query_by_label_contains("No machine, position or point matches \"zzz\"")
+            .is_some(),
+        "no match is said"
+    );
+}
+
+/// Issue 17 item 8: notes on a bearing and baseline marks, stored through the window and shown back
+/// (evidence panel, life trend, spectra month labels).
+#[test]
+fn notes_and_baseline_marks_are_stored_and_shown() {
+    use spallcast_app::panels::bearing_ui::{
+        ADD_NOTE_BUTTON, CLEAR_BASELINE_BUTTON, MARK_BASELINE_BUTTON, NOTE_FIELD_LABEL,
+    };
+    let fx = build_fixture();
+    let mut h = harness(&fx.db, true);
+    settle(&mut h);
+    h.get_by_label(BEARING_LABEL).click();
+    h.step();
+    settle(&mut h);
+    h.get_by_label("Life trend").click();
+    settle(&mut h);
+    h.get_by_role_and_label(egui::Role::TextInput, NOTE_FIELD_LABEL)
+        .focus();
+    h.run_steps(1);
+    h.get_by_role_and_label(egui::Role::TextInput, NOTE_FIELD_LABEL)
+        .type_text("regreased, 2 shots");
+    h.run_steps(2);
+    h.get_by_label(ADD_NOTE_BUTTON).click();
+    settle(&mut h);
+    let history = h.state().history().unwrap();
+    assert_eq!(history.notes.len(), 1, "{:?}", history.notes);
+    assert_eq!(history.notes[0].text, "regreased, 2 shots");
+    assert_eq!(history.notes[0].on_day.to_string(), common::TODAY);
+    assert!(
+        h.query_by_label_contains("observation: regreased, 2 shots")
+            .is_some(),
+        "the note is listed"
+    );
+    h.run_steps(3);
+    assert_eq!(
+        h.state().trend_panel().summary.notes,
+        1,
+        "the note is on the life trend"
+    );
+    // The store holds it: a second window reads it back.
+    drop(h);
+    let mut h = harness(&fx.db, true);
+    settle(&mut h);
+    h.get_by_label(BEARING_LABEL).click();
+    h.step();
+    settle(&mut h);
+    assert_eq!(h.state().history().unwrap().notes.len(), 1);
+
+    // Baseline: the spectra overlay's readings become the baseline.
+    h.get_by_label("Spectra").click();
+    settle(&mut h);
+    let overlaid = h.state().spectra_panel().selected.clone();
+    assert!(!overlaid.is_empty());
+    h.get_by_label(MARK_BASELINE_BUTTON).click();
+    settle(&mut h);
+    let history = h.state().history().unwrap();
+    let marked: Vec<i64> = history
+        .readings
+        .iter()
+        .filter(|r| r.baseline)
+        .map(|r| r.id)
+        .collect();
+    assert!(!marked.is_empty(), "{:?}", h.state().status());
+    // A baseline is one life's readings: the overlay may span the replacement, then it is refused.
+    let status = h.state().status().unwrap().clone();
+    assert!(!status.is_error, "{}", status.text);
+    assert!(h.query_by_label_contains("Baseline marked:").is_some());
+    assert!(
+        h.query_all_by_label_contains("(baseline)").next().is_some(),
+        "month labels say so"
+    );
+    h.get_by_label(CLEAR_BASELINE_BUTTON).click();
+    settle(&mut h);
+    assert!(
+        h.state()
+            .history()
+            .unwrap()
+            .readings
+            .iter()
+            .all(|r| !r.baseline)
+    );
 }
 
 #[test]

@@ -16,6 +16,7 @@ use anyhow::Context as _;
 use chrono::{DateTime, TimeZone as _, Utc};
 use serde::Serialize;
 use spallcast_analysis::Diagnosis;
+use spallcast_analysis::forecast::governing::{CallRank, governing, urgency_s};
 use spallcast_analysis::forecast::{
     Backtest, Forecast, ForecastContext, backtest_life, forecast_life,
 };
@@ -169,7 +170,7 @@ pub fn assess_position(
                         life_readings.push(LifeReading {
                             t_s: to_s(t),
                             indicators,
-                            baseline_mark: false,
+                            baseline_mark: r.baseline,
                         });
                     }
                     Err(why) => hist.skipped.push((r.id, why)),
@@ -208,21 +209,22 @@ pub fn assess_position(
 /// the earliest `replace_by`.
 pub fn summarize(state: &BearingState, lives: &[LifeAssessment]) -> BearingSummary {
     let current = lives.last();
+    // One rule for the bearing's call, shared with the planner and the window.
     let best = current.and_then(|l| {
-        l.points
-            .iter()
-            .filter_map(|p| {
+        governing(
+            l.points.iter().filter_map(|p| {
                 Some((
                     p,
                     p.calls.last()?,
                     p.forecasts.last().and_then(Option::as_ref),
                 ))
-            })
-            .max_by(|a, b| {
-                a.1.stage
-                    .cmp(&b.1.stage)
-                    .then_with(|| urgency_s(b.2).total_cmp(&urgency_s(a.2)))
-            })
+            }),
+            |(p, call, forecast)| CallRank {
+                stage: call.stage,
+                urgency_s: urgency_s(*forecast),
+                point: &p.point,
+            },
+        )
     });
     let last_reading = current.and_then(|l| {
         l.points
@@ -249,11 +251,6 @@ pub fn summarize(state: &BearingState, lives: &[LifeAssessment]) -> BearingSumma
         forecast: best.and_then(|b| b.2.cloned()),
         last_reading,
     }
-}
-
-fn urgency_s(f: Option<&Forecast>) -> f64 {
-    f.and_then(|f| f.replace_by.or(f.risk_from))
-        .map_or(f64::INFINITY, |p| p.t_s)
 }
 
 /// Sorts summaries by urgency: highest stage first, then earliest `replace_by`, then earliest

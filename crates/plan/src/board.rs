@@ -16,6 +16,9 @@ pub struct PlanBoard {
     pub needs: Vec<BearingNeed>,
     /// Plan entries of any status.
     pub entries: Vec<PlanEntry>,
+    /// The analyst's notes on each bearing life (by life id), oldest first, as
+    /// `YYYY-MM-DD kind: text` lines.
+    pub notes: std::collections::BTreeMap<i64, Vec<String>>,
 }
 
 impl PlanBoard {
@@ -74,6 +77,15 @@ impl PlanBoard {
     /// The suggested outage for a bearing (see [`crate::rules::suggest`]).
     pub fn suggestion(&self, need: &BearingNeed) -> Option<&Outage> {
         suggest(need, &self.outages, self.today)
+    }
+
+    /// For a bearing no outage fits (overdue, or nothing before its replace-by date): the next outage
+    /// that takes its machine down ([`crate::rules::next_down`]), offered with its warnings.
+    pub fn late_offer(&self, need: &BearingNeed) -> Option<&Outage> {
+        if self.suggestion(need).is_some() {
+            return None;
+        }
+        crate::rules::next_down(need, &self.outages, self.today)
     }
 
     /// Warnings on a plan entry: the slot checks when the entry is still planned and has a forecast.

@@ -11,7 +11,8 @@
 //!
 //! Layout: a header row, then one row per planned or done replacement (outages by start date, bearings
 //! by machine and position), then one row per bearing still without a slot (status `unplanned`, outage
-//! columns empty, sorted by replace-by date). The last column, `caution`, repeats the advisory line
+//! columns empty, sorted by replace-by date). `bearing_notes` holds the analyst's notes on the bearing's
+//! life (one per line). The last column, `caution`, repeats the advisory line
 //! ([`crate::SAFETY_CAUTION`]) on every row, so it stays with any row a spreadsheet filter keeps. Fields are quoted when they hold a comma, a quote or a line
 //! break; lines end in CRLF; the file is UTF-8 without a byte-order mark.
 
@@ -20,7 +21,7 @@ use crate::error::Result;
 use crate::model::{BearingLife, Forecast};
 
 /// The header row, in order.
-pub const CSV_COLUMNS: [&str; 18] = [
+pub const CSV_COLUMNS: [&str; 19] = [
     "outage",
     "outage_start",
     "outage_end",
@@ -38,6 +39,7 @@ pub const CSV_COLUMNS: [&str; 18] = [
     "suggested_outage",
     "warnings",
     "note",
+    "bearing_notes",
     "caution",
 ];
 
@@ -84,6 +86,7 @@ pub fn replacement_csv(board: &PlanBoard) -> Result<Vec<u8>> {
                 String::new(),
                 warnings,
                 entry.note.clone(),
+                bearing_notes(board, entry.life.life_id),
             );
             w.write_record(
                 row.iter()
@@ -95,10 +98,15 @@ pub fn replacement_csv(board: &PlanBoard) -> Result<Vec<u8>> {
         }
     }
     for need in board.open_needs() {
-        let suggested = board
-            .suggestion(need)
-            .map(|o| o.name.clone())
-            .unwrap_or_default();
+        let suggested = board.suggestion(need).map_or_else(
+            || {
+                board
+                    .late_offer(need)
+                    .map(|o| format!("{} (late)", o.name))
+                    .unwrap_or_default()
+            },
+            |o| o.name.clone(),
+        );
         let warnings = board
             .open_need_warnings(need)
             .iter()
@@ -117,6 +125,7 @@ pub fn replacement_csv(board: &PlanBoard) -> Result<Vec<u8>> {
             suggested,
             warnings,
             String::new(),
+            bearing_notes(board, need.life.life_id),
         );
         w.write_record(
             row.iter()
@@ -130,6 +139,15 @@ pub fn replacement_csv(board: &PlanBoard) -> Result<Vec<u8>> {
         .map_err(|e| crate::error::PlanError::Invalid(format!("CSV export: {}", e.error())))
 }
 
+/// The analyst's notes on a life, one per line.
+fn bearing_notes(board: &PlanBoard, life_id: i64) -> String {
+    board
+        .notes
+        .get(&life_id)
+        .map(|n| n.join("\n"))
+        .unwrap_or_default()
+}
+
 fn row(
     head: [String; 4],
     life: &BearingLife,
@@ -137,6 +155,7 @@ fn row(
     suggested: String,
     warnings: String,
     note: String,
+    bearing_notes: String,
 ) -> Vec<String> {
     let [outage, start, end, status] = head;
     let (stage, replace_by, risk_from, evidence) = forecast.map_or_else(Default::default, |f| {
@@ -165,6 +184,7 @@ fn row(
         suggested,
         warnings,
         note,
+        bearing_notes,
         crate::html::SAFETY_CAUTION.to_owned(),
     ]
 }

@@ -112,7 +112,17 @@ pub fn replacement_html(
         h.push_str("<section><h2>Bearings without a slot</h2>\n");
         for need in open {
             let status = board.suggestion(need).map_or_else(
-                || "not planned".to_owned(),
+                || {
+                    board.late_offer(need).map_or_else(
+                        || "not planned".to_owned(),
+                        |o| {
+                            format!(
+                                "not planned; next outage that takes it down: {} (late)",
+                                o.name
+                            )
+                        },
+                    )
+                },
                 |o| format!("not planned; suggested outage: {}", o.name),
             );
             let warnings = board.open_need_warnings(need);

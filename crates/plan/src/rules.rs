@@ -134,6 +134,25 @@ pub fn suggest<'a>(
         })
 }
 
+/// When no outage fits ([`suggest`] is `None`): the next outage, not yet over, that takes the
+/// bearing's machine down, so an overdue bearing is still offered a slot; [`slot_warnings`] for it say
+/// how late it is. `None` when no coming outage takes the machine down at all.
+pub fn next_down<'a>(
+    need: &BearingNeed,
+    outages: &'a [Outage],
+    today: NaiveDate,
+) -> Option<&'a Outage> {
+    outages
+        .iter()
+        .filter(|o| o.takes_down(&need.life.machine_id, &need.life.area) && o.end >= today)
+        .min_by(|a, b| {
+            a.start
+                .cmp(&b.start)
+                .then(b.end.cmp(&a.end))
+                .then(a.id.cmp(&b.id))
+        })
+}
+
 /// Warnings for putting `need` into `outage`, in a fixed order (machine, timing); empty for a good slot.
 pub fn slot_warnings(need: &BearingNeed, outage: &Outage, today: NaiveDate) -> Vec<SlotWarning> {
     let mut warnings = Vec::new();
@@ -305,6 +324,40 @@ mod tests {
         assert_eq!(
             suggest(&n, &calendar(), d("2027-01-13")).map(|o| o.id),
             Some(1)
+        );
+    }
+
+    /// Issue 17 item 6: an overdue bearing was offered nothing; it gets the next outage that takes
+    /// its machine down, with the warning that it is after the replace-by date.
+    #[test]
+    fn an_overdue_bearing_is_offered_the_next_outage_that_takes_its_machine_down() {
+        let n = need("IN-P2", "Intake", "2027-01-05", "2027-06-01");
+        let today = d("2027-01-14");
+        assert_eq!(suggest(&n, &calendar(), today), None);
+        let cal = calendar();
+        let next = next_down(&n, &cal, today).expect("an intake outage is still to come");
+        assert!(next.start > n.forecast.replace_by && next.end >= today);
+        assert!(
+            calendar()
+                .iter()
+                .filter(|o| o.takes_down("IN-P2", "Intake") && o.end >= today)
+                .all(|o| o.start >= next.start),
+            "the next one, not a later one"
+        );
+        let w = slot_warnings(&n, next, today);
+        assert!(
+            w.iter()
+                .any(|w| matches!(w, SlotWarning::AfterReplaceBy { .. })),
+            "{w:?}"
+        );
+        // A machine no outage takes down gets nothing.
+        assert_eq!(
+            next_down(
+                &need("XX-Z9", "Nowhere", "2027-01-05", "2027-06-01"),
+                &calendar(),
+                today
+            ),
+            None
         );
     }
 

@@ -7,6 +7,7 @@
 use std::collections::{BTreeMap, HashMap};
 
 use chrono::NaiveDate;
+use spallcast_analysis::forecast::governing::{CallRank, governing, urgency_s};
 use spallcast_analysis::record::StageRecord;
 use spallcast_analysis::spectrum::{Detector, Quantity, SpectrumEngine, SpectrumUnits};
 use spallcast_analysis::stage::keys;
@@ -77,7 +78,49 @@ pub enum PlanChange {
     },
 }
 
-/// Writes one change; returns a sentence for the status line.
+/// `MACHINE POSITION` of a bearing life, for status lines; the id when the life is unknown.
+fn life_label(store: &Store, life_id: i64) -> Result<String> {
+    for s in store.latest_states()? {
+        if s.life.as_ref().is_some_and(|l| l.id == life_id) {
+            return Ok(format!("{} {}", s.machine, s.position));
+        }
+    }
+    Ok(store
+        .plan_entries(None)?
+        .into_iter()
+        .find(|e| e.life_id == life_id)
+        .map_or_else(
+            || format!("bearing life {life_id}"),
+            |e| format!("{} {}", e.machine, e.position),
+        ))
+}
+
+/// `MACHINE POSITION` of a plan entry's bearing and its outage, for status lines.
+fn entry_label(store: &Store, entry_id: i64) -> Result<(String, Option<spallcast_store::Outage>)> {
+    let Some(e) = store
+        .plan_entries(None)?
+        .into_iter()
+        .find(|e| e.id == entry_id)
+    else {
+        return Ok((format!("plan entry {entry_id}"), None));
+    };
+    let outage = store.outages()?.into_iter().find(|o| o.id == e.outage_id);
+    Ok((format!("{} {}", e.machine, e.position), outage))
+}
+
+fn outage_label(store: &Store, outage_id: i64) -> Result<String> {
+    Ok(store
+        .outages()?
+        .into_iter()
+        .find(|o| o.id == outage_id)
+        .map_or_else(
+            || format!("outage {outage_id}"),
+            |o| format!("\"{}\"", o.name),
+        ))
+}
+
+/// Writes one change; returns a sentence for the status line, naming bearings and outages (never
+/// internal ids).
 pub fn apply_change(store: &mut Store, change: &PlanChange) -> Result<String> {
     Ok(match change {
         PlanChange::Assign { life_id, outage_id } => {
@@ -91,35 +134,55 @@ pub fn apply_change(store: &mut Store, change: &PlanChange) -> Result<String> {
                     store.unplan(other.id)?;
                 }
             }
-            format!("planned bearing life {life_id} in outage {outage_id}")
+            format!(
+                "planned {} in {}",
+                life_label(store, *life_id)?,
+                outage_label(store, *outage_id)?
+            )
         }
         PlanChange::Unplan { entry_id } => {
+            let (bearing, outage) = entry_label(store, *entry_id)?;
             store.unplan(*entry_id)?;
-            format!("removed plan entry {entry_id}")
+            match outage {
+                Some(o) => format!("took {bearing} out of \"{}\"", o.name),
+                None => format!("took {bearing} out of its outage"),
+            }
         }
         PlanChange::Cancel { entry_id, note } => {
+            let (bearing, _) = entry_label(store, *entry_id)?;
             store.cancel_plan(*entry_id, note)?;
-            format!("cancelled plan entry {entry_id}")
+            format!("cancelled the replacement of {bearing}")
         }
         PlanChange::MarkDone {
             entry_id,
             replaced_on,
             found,
         } => {
-            let new_life = store.mark_done(*entry_id, *replaced_on, found)?;
-            format!("replacement done on {replaced_on}; new bearing life {new_life} started")
+            let (bearing, outage) = entry_label(store, *entry_id)?;
+            store.mark_done(*entry_id, *replaced_on, found)?;
+            let line = format!(
+                "replacement of {bearing} done on {replaced_on}; its new bearing starts a new life"
+            );
+            match outage.filter(|o| *replaced_on < o.start) {
+                Some(o) => format!(
+                    "{line}\nWarning: {replaced_on} is before outage \"{}\" starts ({}): check the date",
+                    o.name, o.start
+                ),
+                None => line,
+            }
         }
         PlanChange::AddOutage(o) => {
-            let id = store.add_outage(o)?;
-            format!("added outage \"{}\" (id {id})", o.name)
+            store.add_outage(o)?;
+            format!("added outage \"{}\"", o.name)
         }
         PlanChange::UpdateOutage { id, outage } => {
             store.update_outage(*id, outage)?;
             format!("saved outage \"{}\"", outage.name)
         }
         PlanChange::DeleteOutage { id } => {
+            let name = outage_label(store, *id)?;
             store.delete_outage(*id)?;
-            format!("deleted outage {id}")
+            format!("deleted outage {name}")
         }
     })
 }
@@ -168,24 +231,91 @@ pub fn current_lives(store: &Store) -> Result<Vec<BearingLife>> {
         .collect())
 }
 
-/// Forecasts of current lives read from their latest stage call: the call must be on a reading of
-/// that life and hold a [`StageRecord`] of the current schema whose forecast has both `replace_by` and
-/// `risk_from` (the central estimates are the dates planned against). The call's evidence sentences
-/// become the evidence text. Lives without such a call are left out.
-pub fn stored_forecasts(store: &Store) -> Result<BTreeMap<i64, Forecast>> {
+/// One bearing's call as every view and export shows it: the governing point's latest stored call on
+/// the bearing's newest life (the rule of [`spallcast_analysis::forecast::governing`], which the
+/// command line's replacement list uses too).
+#[derive(Debug, Clone, PartialEq)]
+pub struct BearingCall {
+    /// Bearing position id.
+    pub position_id: i64,
+    /// The life the call is on.
+    pub life_id: i64,
+    /// The point whose call governs.
+    pub point: String,
+    /// The reading the call was made on.
+    pub reading_id: i64,
+    /// When that reading was taken.
+    pub taken_at: chrono::DateTime<chrono::Utc>,
+    /// The points with calls on this life, in id order (what the call rests on).
+    pub points: Vec<String>,
+    /// Stage 0..=4.
+    pub stage: u8,
+    /// The stored record, when it is of the current schema.
+    pub record: Option<StageRecord>,
+}
+
+/// Every bearing's call, by position id. A bearing whose newest life has no stored call (one just
+/// replaced, or never read) is absent.
+pub fn bearing_calls(store: &Store) -> Result<BTreeMap<i64, BearingCall>> {
+    let mut by_position: BTreeMap<i64, Vec<(spallcast_store::PointCall, Option<StageRecord>)>> =
+        BTreeMap::new();
+    for pc in store.latest_point_calls()? {
+        let record = serde_json::from_value::<StageRecord>(pc.call.evidence.clone())
+            .ok()
+            .filter(StageRecord::is_current);
+        by_position
+            .entry(pc.position_id)
+            .or_default()
+            .push((pc, record));
+    }
     let mut out = BTreeMap::new();
-    for state in store.latest_states()? {
-        let (Some(life), Some(call)) = (state.life.as_ref(), state.latest_stage.as_ref()) else {
-            continue;
-        };
-        if life.removed.is_some() || store.reading(call.reading_id)?.life_id != Some(life.id) {
+    for (position_id, calls) in by_position {
+        let points: Vec<String> = calls.iter().map(|(pc, _)| pc.point.clone()).collect();
+        let best = governing(calls, |(pc, record)| CallRank {
+            stage: pc.call.stage,
+            urgency_s: urgency_s(record.as_ref().and_then(|r| r.forecast.as_ref())),
+            point: &pc.point,
+        });
+        if let Some((pc, record)) = best {
+            out.insert(
+                position_id,
+                BearingCall {
+                    position_id,
+                    life_id: pc.life_id,
+                    point: pc.point,
+                    reading_id: pc.call.reading_id,
+                    taken_at: pc.taken_at,
+                    points,
+                    stage: pc.call.stage,
+                    record,
+                },
+            );
+        }
+    }
+    Ok(out)
+}
+
+/// Forecasts of current lives, read from each bearing's call ([`bearing_calls`]): the call must be
+/// on a life not yet removed and hold a [`StageRecord`] of the current schema whose forecast has
+/// both `replace_by` and `risk_from` (the central estimates are the dates planned against). The
+/// call's evidence sentences become the evidence text. Lives without such a call are left out.
+pub fn stored_forecasts(store: &Store) -> Result<BTreeMap<i64, Forecast>> {
+    let removed: std::collections::HashSet<i64> = store
+        .latest_states()?
+        .into_iter()
+        .filter_map(|s| s.life.filter(|l| l.removed.is_some()).map(|l| l.id))
+        .collect();
+    let mut out = BTreeMap::new();
+    for call in bearing_calls(store)?.into_values() {
+        if removed.contains(&call.life_id) {
             continue;
         }
-        let Ok(record) = serde_json::from_value::<StageRecord>(call.evidence.clone()) else {
-            continue;
-        };
-        if let Some(f) = forecast_from_record(call.stage, &record) {
-            out.insert(life.id, f);
+        if let Some(f) = call
+            .record
+            .as_ref()
+            .and_then(|r| forecast_from_record(call.stage, r))
+        {
+            out.insert(call.life_id, f);
         }
     }
     Ok(out)
@@ -258,14 +388,39 @@ pub fn load_board_with(
             forecast: forecasts.get(&e.life_id).cloned(),
         });
     }
+    let notes = life_notes(store, &states)?;
     let mut board = PlanBoard {
         today,
         outages,
         needs,
         entries,
+        notes,
     };
     board.normalise();
     Ok(board)
+}
+
+/// The analyst's notes of every bearing life, by life id: the notes of its position dated within
+/// the life.
+fn life_notes(store: &Store, states: &[BearingState]) -> Result<BTreeMap<i64, Vec<String>>> {
+    let mut out = BTreeMap::new();
+    for state in states {
+        let notes = store.notes(state.position_id)?;
+        if notes.is_empty() {
+            continue;
+        }
+        for life in store.lives(state.position_id)? {
+            let lines: Vec<String> = notes
+                .iter()
+                .filter(|n| n.on_day >= life.installed && life.removed.is_none_or(|r| n.on_day < r))
+                .map(|n| format!("{} {}: {}", n.on_day, n.kind, n.text))
+                .collect();
+            if !lines.is_empty() {
+                out.insert(life.id, lines);
+            }
+        }
+    }
+    Ok(out)
 }
 
 /// The lives the report shows: planned or done in an outage, or still needing a slot.

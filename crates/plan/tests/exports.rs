@@ -112,6 +112,10 @@ fn tricky_board() -> PlanBoard {
         outages: vec![filters, spring],
         needs: vec![open, urgent],
         entries: vec![e1, e2, e3, cancelled],
+        notes: BTreeMap::from([(
+            1,
+            vec!["2026-11-02 lubrication: =regreased 2 shots".to_owned()],
+        )]),
     };
     board.normalise();
     board
@@ -191,6 +195,11 @@ fn csv_reads_back_field_for_field_with_an_rfc4180_parser() {
     assert_eq!(r0["suggested_outage"], "");
     // Formula neutralised with an apostrophe.
     assert_eq!(r0["note"], "'=HYPERLINK(\"http://x\")");
+    // The analyst's notes on the life ride with its row.
+    assert_eq!(
+        r0["bearing_notes"],
+        "2026-11-02 lubrication: =regreased 2 shots"
+    );
     let r1 = &rows[1];
     assert_eq!(r1["machine_name"], "Intake pump 2 — <east>");
     assert_eq!((r1["stage"].as_str(), r1["replace_by"].as_str()), ("", ""));

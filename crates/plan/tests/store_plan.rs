@@ -104,7 +104,10 @@ fn assign_move_and_mark_done_persist_and_start_a_new_life() {
         },
     )
     .unwrap();
-    assert!(msg.contains("new bearing life"), "{msg}");
+    assert!(msg.contains("replacement of IN-P1 "), "{msg}");
+    assert!(msg.contains("new life"), "{msg}");
+    // Done inside the outage (8-12 Mar): no comment on the date.
+    assert!(!msg.contains("Warning"), "{msg}");
     let lives = current_lives(&store).unwrap();
     let new_p1 = lives.iter().find(|l| l.machine_id == "IN-P1").unwrap();
     assert_ne!(new_p1.life_id, p1.life_id, "a new life started");
@@ -118,6 +121,55 @@ fn assign_move_and_mark_done_persist_and_start_a_new_life() {
     assert!(board.open_needs().is_empty());
     // Done entries carry no warning.
     assert!(board.entry_warnings(done[0]).is_empty());
+}
+
+/// Issue 17 item 2: a replacement dated before its outage was accepted without comment. It is still
+/// recorded (the planner may know better), with a warning naming the outage and its start.
+#[test]
+fn a_replacement_dated_before_its_outage_is_recorded_with_a_warning() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut store = plant_store(&dir.path().join("plant.db"));
+    let p1 = current_lives(&store)
+        .unwrap()
+        .into_iter()
+        .find(|l| l.machine_id == "IN-P1")
+        .unwrap();
+    let fc = forecasts(&[(p1.life_id, "2027-04-20", "2027-06-01")]);
+    let today = d("2026-12-01");
+    let spring = load_board_with(&store, today, &fc)
+        .unwrap()
+        .outages
+        .iter()
+        .find(|o| o.name == "Spring intake shutdown")
+        .unwrap()
+        .id;
+    apply_change(
+        &mut store,
+        &PlanChange::Assign {
+            life_id: p1.life_id,
+            outage_id: spring,
+        },
+    )
+    .unwrap();
+    let entry_id = load_board_with(&store, today, &fc)
+        .unwrap()
+        .tasks_in(spring)[0]
+        .id;
+    let msg = apply_change(
+        &mut store,
+        &PlanChange::MarkDone {
+            entry_id,
+            replaced_on: d("2027-02-01"),
+            found: "outer race spall".into(),
+        },
+    )
+    .unwrap();
+    assert!(
+        msg.contains(
+            "Warning: 2027-02-01 is before outage \"Spring intake shutdown\" starts (2027-03-08)"
+        ),
+        "{msg}"
+    );
 }
 
 #[test]

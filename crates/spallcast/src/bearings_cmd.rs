@@ -36,15 +36,34 @@ pub struct BearingArgs {
     /// The plant database.
     #[arg(long)]
     pub db: PathBuf,
+    /// Print JSON: every life with each point's calls, forecasts and (for replaced lives) the replay.
+    #[arg(long)]
+    pub json: bool,
 }
 
-const CAUTION: &str = "Advisory only: isolate and lock out the machine before any work, and follow local codes and licensed practice.";
+pub(crate) const CAUTION: &str = "Advisory only: isolate and lock out the machine before any work, and follow local codes and licensed practice.";
 
 fn date(t: Option<DateTime<Utc>>) -> String {
     t.map_or_else(
         || "-".to_owned(),
         |d| d.format("%Y-%m-%d %H:%M").to_string(),
     )
+}
+
+/// A reading time in UTC, with seconds when `seconds` (readings closer together than a minute).
+fn reading_time(t: DateTime<Utc>, seconds: bool) -> String {
+    if seconds {
+        t.format("%Y-%m-%d %H:%M:%S").to_string()
+    } else {
+        t.format("%Y-%m-%d %H:%M").to_string()
+    }
+}
+
+/// Whether any two neighbouring times are less than a minute apart.
+fn needs_seconds(times: &[DateTime<Utc>]) -> bool {
+    times
+        .windows(2)
+        .any(|w| (w[1] - w[0]).num_seconds().abs() < 60)
 }
 
 fn date_s(t_s: f64) -> String {
@@ -135,44 +154,88 @@ pub fn bearings_table(rows: &[BearingSummary]) -> String {
     out
 }
 
-/// Runs `spallcast bearing`.
-pub fn run_bearing(args: &BearingArgs) -> anyhow::Result<ExitCode> {
-    let store = open(&args.db)?;
+/// Finds the bearing `wanted` names (`MACHINE/POSITION`, its number, or a point id on it) and assesses
+/// its lives.
+pub(crate) fn find_bearing(
+    store: &Store,
+    db: &std::path::Path,
+    wanted: &str,
+) -> anyhow::Result<(spallcast_store::BearingState, Vec<LifeAssessment>)> {
     let states = store.latest_states().context("listing bearing positions")?;
-    let wanted = args.id.trim();
-    let mut found = None;
-    for s in &states {
+    let wanted = wanted.trim();
+    for s in states {
         let key = format!("{}/{}", s.machine, s.position);
         if key.eq_ignore_ascii_case(wanted) || s.position_id.to_string() == wanted {
-            found = Some((s, None));
-            break;
+            let lives = assess_position(store, &s, &StageOptions::default())?;
+            return Ok((s, lives));
         }
-        let lives = assess_position(&store, s, &StageOptions::default())?;
+        let lives = assess_position(store, &s, &StageOptions::default())?;
         if lives.iter().any(|l| {
             l.points
                 .iter()
                 .any(|p| p.point.eq_ignore_ascii_case(wanted))
         }) {
-            found = Some((s, Some(lives)));
-            break;
+            return Ok((s, lives));
         }
     }
-    let Some((state, lives)) = found else {
-        bail!(
-            "no bearing {wanted:?} in {}: give MACHINE/POSITION, a point id or the bearing number",
-            args.db.display()
-        );
-    };
-    let lives = match lives {
-        Some(l) => l,
-        None => assess_position(&store, state, &StageOptions::default())?,
-    };
+    bail!(
+        "no bearing {wanted:?} in {}: give MACHINE/POSITION, a point id or the bearing number",
+        db.display()
+    )
+}
+
+/// Runs `spallcast bearing`.
+pub fn run_bearing(args: &BearingArgs) -> anyhow::Result<ExitCode> {
+    let store = open(&args.db)?;
+    let (state, lives) = find_bearing(&store, &args.db, &args.id)?;
+    let notes = store.notes(state.position_id)?;
+    let baseline: Vec<i64> = store
+        .readings_of_position(state.position_id)?
+        .into_iter()
+        .filter(|r| r.baseline)
+        .map(|r| r.id)
+        .collect();
+    if args.json {
+        let doc = serde_json::json!({
+            "caution": CAUTION,
+            "times": "UTC",
+            "machine": state.machine,
+            "machine_name": state.machine_name,
+            "area": state.area,
+            "position": state.position,
+            "lubrication": state.lubrication,
+            "lives": lives,
+            "notes": notes,
+            "baseline_readings": baseline,
+        });
+        println!("{}", serde_json::to_string_pretty(&doc)?);
+        return Ok(ExitCode::SUCCESS);
+    }
     println!(
-        "{} / {} ({}, {}), {:?} lubrication",
+        "{} / {} ({}, {}), {:?} lubrication; times are UTC",
         state.machine, state.position, state.machine_name, state.area, state.lubrication
     );
     for life in &lives {
         print!("{}", life_report(life));
+    }
+    if !baseline.is_empty() {
+        println!(
+            "\nBaseline marked by the analyst: readings {}",
+            baseline
+                .iter()
+                .map(i64::to_string)
+                .collect::<Vec<_>>()
+                .join(", ")
+        );
+    }
+    if !notes.is_empty() {
+        println!("\nNotes:");
+        for n in &notes {
+            let about = n
+                .reading_id
+                .map_or_else(String::new, |r| format!(" (reading {r})"));
+            println!("  {}  {:<11} {}{about}", n.on_day, n.kind.as_str(), n.text);
+        }
     }
     println!("{CAUTION}");
     Ok(ExitCode::SUCCESS)
@@ -214,11 +277,12 @@ fn point_report(p: &PointHistory) -> String {
         p.calls.len(),
         p.skipped.len()
     );
+    let seconds = needs_seconds(&p.taken_at);
     for ((c, t), f) in p.calls.iter().zip(&p.taken_at).zip(&p.forecasts) {
         let _ = writeln!(
             out,
             "  {}  stage {}  {:<16} conf {:>3.0}%  damage {:+5.1} dB  replace by {}  stage-4 risk {}",
-            date(Some(*t)),
+            reading_time(*t, seconds),
             c.stage,
             c.location.name(),
             100.0 * c.confidence,

@@ -4,10 +4,12 @@
 #![forbid(unsafe_code)]
 
 mod analyzer;
+mod backtest_cmd;
 mod bearings_cmd;
 mod demo_cmd;
 mod diagnose_cmd;
 mod import_cmd;
+mod notes_cmd;
 mod plan_cmd;
 mod refresh;
 mod rules_cmd;
@@ -44,6 +46,12 @@ enum Command {
     Bearings(bearings_cmd::BearingsArgs),
     /// One bearing's history of stage calls with their evidence.
     Bearing(bearings_cmd::BearingArgs),
+    /// Replay each bearing life reading by reading and score the forecasts against the replacement.
+    Backtest(backtest_cmd::BacktestArgs),
+    /// Add a note to a bearing or one of its readings (an observation, lubrication or maintenance).
+    Note(notes_cmd::NoteArgs),
+    /// Mark which readings form a bearing life's baseline (default: its first readings).
+    Baseline(notes_cmd::BaselineArgs),
     /// Outage planning: export the replacement list for the planner (CSV, iCalendar, HTML).
     Plan(plan_cmd::PlanArgs),
     /// Every threshold behind the location, stage and life calls, with its meaning and source.
@@ -61,6 +69,9 @@ fn main() -> ExitCode {
         }
         Some(Command::Bearings(args)) => bearings_cmd::run_bearings(&args),
         Some(Command::Bearing(args)) => bearings_cmd::run_bearing(&args),
+        Some(Command::Backtest(args)) => backtest_cmd::run(&args),
+        Some(Command::Note(args)) => notes_cmd::run_note(&args),
+        Some(Command::Baseline(args)) => notes_cmd::run_baseline(&args),
         // Stage calls missing or out of date are completed first, so the plan shows today's calls.
         Some(Command::Plan(args)) => match &args.command {
             plan_cmd::PlanCommand::Export(e) => refresh::open_and_refresh(&e.db, false),

@@ -41,6 +41,7 @@
 #![warn(missing_docs)]
 
 mod analyzer;
+mod annotations;
 mod error;
 mod import;
 mod planning;
@@ -55,6 +56,7 @@ use std::path::PathBuf;
 use std::time::Duration;
 
 pub use analyzer::{AnalysisInput, AnalysisOutput, FaultFactors, ReadingAnalyzer};
+pub use annotations::{NOTE_MAX_CHARS, NewNote, Note, NoteKind};
 pub use error::{Result, StoreError};
 pub use import::{
     CLIPPED_FRACTION_THRESHOLD, FindingChange, ImportSummary, NewReading, RejectedFile,
@@ -71,7 +73,7 @@ pub use queries::{
     MachineNode, PlantTree, PointNode, ReadingMeta, RouteDay, TrendPoint, Waveform,
 };
 pub use schema::{SCHEMA_VERSION, copy_database, is_demo_database};
-pub use stage_calls::NewStageCall;
+pub use stage_calls::{NewStageCall, PointCall};
 
 /// How long a connection waits for another process's lock before failing with a "busy" error.
 pub const BUSY_TIMEOUT: Duration = Duration::from_secs(5);

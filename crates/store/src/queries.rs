@@ -18,7 +18,8 @@ pub use crate::records::{
 
 const READING_COLUMNS: &str = "r.id, r.point_id, pt.tag, pt.direction, r.position_id, m.tag, bp.position, r.life_id,
     r.taken_at_utc, r.utc_offset_s, r.route_day, r.shaft_hz, r.sample_rate_hz, r.units, r.sample_count,
-    r.source_file, r.content_sha256, r.suspect, r.clipped_fraction, a.version";
+    r.source_file, r.content_sha256, r.suspect, r.clipped_fraction, a.version,
+    EXISTS (SELECT 1 FROM baseline_mark b WHERE b.reading_id = r.id)";
 const READING_JOINS: &str = "FROM reading r JOIN point pt ON pt.id = r.point_id
     JOIN bearing_position bp ON bp.id = r.position_id JOIN machine m ON m.id = bp.machine_id
     LEFT JOIN analysis a ON a.reading_id = r.id";
@@ -45,6 +46,7 @@ struct ReadingMetaNoTime {
     suspect: Option<String>,
     clipped_fraction: f64,
     analysis_version: Option<String>,
+    baseline: bool,
 }
 
 fn raw_meta(r: &Row<'_>) -> rusqlite::Result<RawMeta> {
@@ -68,6 +70,7 @@ fn raw_meta(r: &Row<'_>) -> rusqlite::Result<RawMeta> {
             suspect: r.get(17)?,
             clipped_fraction: r.get(18)?,
             analysis_version: r.get(19)?,
+            baseline: r.get(20)?,
         },
         r.get(8)?,
         r.get(9)?,
@@ -96,6 +99,7 @@ fn finish_meta(raw: RawMeta) -> Result<ReadingMeta> {
         suspect: m.suspect,
         clipped_fraction: m.clipped_fraction,
         analysis_version: m.analysis_version,
+        baseline: m.baseline,
     })
 }
 

@@ -184,6 +184,8 @@ pub struct ReadingMeta {
     pub clipped_fraction: f64,
     /// Analyzer version of the stored results.
     pub analysis_version: Option<String>,
+    /// The analyst marked it as part of its life's baseline.
+    pub baseline: bool,
 }
 
 /// A waveform with its metadata.

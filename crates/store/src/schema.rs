@@ -224,6 +224,29 @@ DELETE FROM reading_scalar
 UPDATE stage_call SET evidence = '{"schema_version":1,' || substr(evidence, 2)
     WHERE evidence LIKE '{"call":%' AND evidence NOT LIKE '%"schema_version":%';
 "#,
+    // 6: the analyst's own records: notes on a bearing or one of its readings (observations,
+    // lubrication and maintenance events), and readings marked as a life's baseline. A change of the
+    // marks is dated per position, so the position's stage calls go stale and are recomputed.
+    r"
+CREATE TABLE note (
+    id INTEGER PRIMARY KEY,
+    position_id INTEGER NOT NULL REFERENCES bearing_position(id) ON DELETE CASCADE,
+    reading_id INTEGER REFERENCES reading(id) ON DELETE CASCADE,
+    on_day TEXT NOT NULL,
+    kind TEXT NOT NULL CHECK (kind IN ('observation', 'lubrication', 'maintenance')),
+    text TEXT NOT NULL CHECK (length(text) BETWEEN 1 AND 2000),
+    created_at TEXT NOT NULL
+);
+CREATE INDEX note_position ON note(position_id, on_day);
+CREATE TABLE baseline_mark (
+    reading_id INTEGER PRIMARY KEY REFERENCES reading(id) ON DELETE CASCADE,
+    marked_at TEXT NOT NULL
+);
+CREATE TABLE baseline_change (
+    position_id INTEGER PRIMARY KEY REFERENCES bearing_position(id) ON DELETE CASCADE,
+    changed_at TEXT NOT NULL
+);
+",
 ];
 
 impl Store {

@@ -15,6 +15,7 @@
 
 mod backtest;
 pub mod degradation;
+pub mod governing;
 mod score;
 mod trend;
 

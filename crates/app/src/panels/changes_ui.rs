@@ -96,6 +96,17 @@ impl ChangesPanel {
                             ui.end_row();
                         }
                     });
+                if !att.not_collected.is_empty() {
+                    ui.add_space(10.0);
+                    ui.strong(format!(
+                        "Not collected on the last route ({})",
+                        att.not_collected.len()
+                    ));
+                    ui.label(format!(
+                        "Read on the route day before, not on the latest: {}",
+                        att.not_collected.join(", ")
+                    ));
+                }
                 ui.add_space(10.0);
                 ui.strong(format!("Rejected files ({})", att.rejected.len()));
                 if att.rejected.is_empty() {

@@ -153,9 +153,13 @@ pub fn default_selection(history: &BearingHistory, point: &str) -> Vec<ReadingId
         return Vec::new();
     };
     let life_start = history.life_start_for(latest.taken_at.date_naive());
+    let in_life = |r: &&&ReadingSummary| life_start.is_none_or(|d| r.taken_at.date_naive() >= d);
+    // The analyst's marked baseline when there is one, else the life's first reading.
     let baseline = readings
         .iter()
-        .find(|r| life_start.is_none_or(|d| r.taken_at.date_naive() >= d))
+        .filter(in_life)
+        .find(|r| r.baseline)
+        .or_else(|| readings.iter().find(in_life))
         .or(readings.first());
     let mut picked: Vec<&ReadingSummary> = baseline.into_iter().copied().collect();
     if readings.len() >= 2 {
@@ -169,6 +173,15 @@ pub fn default_selection(history: &BearingHistory, point: &str) -> Vec<ReadingId
 }
 
 impl SpectraPanel {
+    /// The readings overlaid for `key` (empty when the overlay belongs to another bearing).
+    pub fn overlay_of(&self, key: &BearingKey) -> &[ReadingId] {
+        if self.bearing.as_ref() == Some(key) {
+            &self.selected
+        } else {
+            &[]
+        }
+    }
+
     /// Resets the month selection when another bearing's history arrives.
     pub fn sync_bearing(&mut self, history: &BearingHistory) {
         if self.bearing.as_ref() == Some(&history.key) {
@@ -183,6 +196,37 @@ impl SpectraPanel {
             .unwrap_or_default();
         self.summary = SpectraFrameSummary::default();
         self.cursor = None;
+    }
+
+    /// Moves the newest overlaid reading to the next (`step` > 0) or previous reading of the shown
+    /// point, keeping the others (the month-over-month comparison walks through the life). Returns
+    /// false when there is no reading that way.
+    pub fn step_month(&mut self, history: &BearingHistory, step: i32) -> bool {
+        let Some(point) = self.point.clone() else {
+            return false;
+        };
+        let readings: Vec<&ReadingSummary> = history.readings_of(&point).collect();
+        let Some(&newest) = self.selected.last() else {
+            return false;
+        };
+        let Some(at) = readings.iter().position(|r| r.id == newest) else {
+            return false;
+        };
+        let target = if step > 0 {
+            at.checked_add(1)
+        } else {
+            at.checked_sub(1)
+        };
+        let Some(next) = target.and_then(|i| readings.get(i)).map(|r| r.id) else {
+            return false;
+        };
+        self.selected.pop();
+        if !self.selected.contains(&next) {
+            self.selected.push(next);
+        }
+        self.selected
+            .sort_by_key(|r| history.reading(*r).map(|s| s.taken_at));
+        true
     }
 
     /// Adds or removes a reading from the overlay, keeping time order.
@@ -309,7 +353,14 @@ impl SpectraPanel {
             };
             let days: Vec<(ReadingId, String, Option<u8>)> = history
                 .readings_of(&point)
-                .map(|r| (r.id, r.day_label(), r.stage))
+                .map(|r| {
+                    let label = if r.baseline {
+                        format!("{} (baseline)", r.day_label())
+                    } else {
+                        r.day_label()
+                    };
+                    (r.id, label, r.stage)
+                })
                 .collect();
             for (id, day, stage) in days {
                 let mut on = self.selected.contains(&id);

@@ -6,10 +6,13 @@ use crate::actions::Action;
 use crate::model::{BearingKey, PlantTree};
 use crate::palette;
 
+/// The label of the plant tree's filter field.
+pub const FIND_LABEL: &str = "Find:";
+
 /// The left-hand plant panel.
 #[derive(Debug, Default)]
 pub struct PlantTreePanel {
-    /// Text filter on machine ids, names and positions.
+    /// Text filter on machine ids and names, positions and point ids.
     pub filter: String,
 }
 
@@ -31,15 +34,17 @@ impl PlantTreePanel {
             ui.label(egui::RichText::new(&plant.site).italics());
         }
         ui.horizontal(|ui| {
-            ui.label("Find:");
+            let label = ui.label(FIND_LABEL);
             ui.add(
                 egui::TextEdit::singleline(&mut self.filter)
                     .desired_width(120.0)
-                    .hint_text("machine or position"),
-            );
+                    .hint_text("machine, position or point"),
+            )
+            .labelled_by(label.id);
         });
         ui.separator();
         let needle = self.filter.trim().to_lowercase();
+        let mut shown = 0;
         egui::ScrollArea::vertical()
             .auto_shrink([false, false])
             .show(ui, |ui| {
@@ -51,14 +56,18 @@ impl PlantTreePanel {
                             needle.is_empty()
                                 || m.id.to_lowercase().contains(&needle)
                                 || m.name.to_lowercase().contains(&needle)
-                                || m.bearings
-                                    .iter()
-                                    .any(|b| b.label().to_lowercase().contains(&needle))
+                                || m.bearings.iter().any(|b| {
+                                    b.label().to_lowercase().contains(&needle)
+                                        || b.points
+                                            .iter()
+                                            .any(|p| p.to_lowercase().contains(&needle))
+                                })
                         })
                         .collect();
                     if machines.is_empty() {
                         continue;
                     }
+                    shown += machines.len();
                     egui::CollapsingHeader::new(egui::RichText::new(&area.name).strong())
                         .id_salt(("area", &area.name))
                         .default_open(true)
@@ -88,6 +97,12 @@ impl PlantTreePanel {
                                 });
                             }
                         });
+                }
+                if shown == 0 {
+                    ui.label(format!(
+                        "No machine, position or point matches \"{}\".",
+                        self.filter.trim()
+                    ));
                 }
             });
     }

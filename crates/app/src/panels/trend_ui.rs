@@ -4,10 +4,11 @@
 use chrono::{DateTime, NaiveDate};
 use eframe::egui;
 use egui_plot::{
-    HLine, HoverPosition, Legend, Line, LineStyle, Plot, PlotPoint, PlotPoints, Points, Span, Text,
-    VLine,
+    Corner, HLine, HoverPosition, Legend, Line, LineStyle, Plot, PlotPoint, PlotPoints, Points,
+    Span, Text, VLine,
 };
 use spallcast_analysis::indicators::zone_boundaries_mm_s;
+use spallcast_analysis::stage::rules::{DAMAGE_STAGE3_DB, DAMAGE_STAGE4_DB};
 use spallcast_analysis::stage::{db_over, keys};
 
 use crate::model::{BearingHistory, BearingKey, ReadingSummary};
@@ -31,7 +32,17 @@ const VELOCITY_KEYS: [&str; 1] = [keys::VELOCITY_RMS_MM_S];
 /// Seconds per day, for the date axis.
 const DAY_S: f64 = 86_400.0;
 
+/// Width of both plots' value axes, so their time axes line up.
+const Y_AXIS_WIDTH: f32 = 56.0;
+
+/// Legend name of the damage index series (the quantity the forecast projects).
+pub const DAMAGE_SERIES: &str = "damage index (forecast basis)";
+
 /// What the last frame drew.
+#[allow(
+    clippy::struct_excessive_bools,
+    reason = "a record of independent things drawn, read by tests; not a state machine"
+)]
 #[derive(Debug, Clone, Default, PartialEq)]
 pub struct TrendFrameSummary {
     /// Indicator names drawn.
@@ -44,6 +55,18 @@ pub struct TrendFrameSummary {
     pub zone_lines: bool,
     /// Whether a forecast was drawn.
     pub forecast: bool,
+    /// Whether the forecast's projection of the damage index was drawn (a line to the stage-3 and
+    /// stage-4 levels).
+    pub projection: bool,
+    /// Line segments drawn per indicator (one per bearing life with readings: never joined across a
+    /// replacement).
+    pub segments: Vec<(String, usize)>,
+    /// Colour of each indicator drawn (fixed per indicator, whatever else is chosen).
+    pub colours: Vec<(String, egui::Color32)>,
+    /// Whether "replace now" was drawn instead of an interval (stage 4).
+    pub replace_now: bool,
+    /// The analyst's notes drawn (dated lines with their kind).
+    pub notes: usize,
 }
 
 /// The life-trend view.
@@ -88,13 +111,14 @@ fn hover_label(hover: &HoverPosition<'_>, unit: &str) -> String {
     }
 }
 
-/// dB of `key` over the first reading of each life that has it; one point per reading.
+/// dB of `key` over the first reading of each life that has it; one segment per bearing life (a line
+/// is never joined across a replacement), one point per reading.
 pub fn db_series(
     history: &BearingHistory,
     readings: &[&ReadingSummary],
     key: &str,
-) -> Vec<[f64; 2]> {
-    let mut out = Vec::with_capacity(readings.len());
+) -> Vec<Vec<[f64; 2]>> {
+    let mut out: Vec<Vec<[f64; 2]>> = Vec::new();
     let mut base: Option<(Option<NaiveDate>, f64)> = None;
     for r in readings {
         let Some(v) = r.scalars.get(key).copied() else {
@@ -103,12 +127,39 @@ pub fn db_series(
         let life = history.life_start_for(r.taken_at.date_naive());
         if base.is_none_or(|(l, _)| l != life) {
             base = Some((life, v));
+            out.push(Vec::new());
         }
-        if let Some(db) = db_over(Some(v), base.map(|(_, b)| b)) {
-            out.push([day_of(r), db]);
+        if let (Some(db), Some(seg)) = (db_over(Some(v), base.map(|(_, b)| b)), out.last_mut()) {
+            seg.push([day_of(r), db]);
+        }
+    }
+    out.retain(|s| !s.is_empty());
+    out
+}
+
+/// The damage index of each reading's call, one segment per bearing life.
+pub fn damage_series(history: &BearingHistory, readings: &[&ReadingSummary]) -> Vec<Vec<[f64; 2]>> {
+    let mut out: Vec<Vec<[f64; 2]>> = Vec::new();
+    let mut life_of_last = None;
+    for r in readings {
+        let Some(d) = r.damage_db else { continue };
+        let life = history.life_start_for(r.taken_at.date_naive());
+        if out.is_empty() || life_of_last != Some(life) {
+            out.push(Vec::new());
+            life_of_last = Some(life);
+        }
+        if let Some(seg) = out.last_mut() {
+            seg.push([day_of(r), d]);
         }
     }
     out
+}
+
+/// The fixed colour of an indicator: by its place in [`INDICATORS`], so choosing another indicator
+/// never recolours the ones shown.
+pub fn indicator_colour(key: &str) -> egui::Color32 {
+    let i = INDICATORS.iter().position(|(k, _)| *k == key).unwrap_or(0);
+    palette::TREND_COLOURS[i % palette::TREND_COLOURS.len()]
 }
 
 impl TrendPanel {
@@ -165,34 +216,75 @@ impl TrendPanel {
         let link = egui::Id::unique("trend-x-link");
         let height = ((ui.available_height() - 8.0) * 0.6).max(140.0);
         let mut summary = TrendFrameSummary::default();
+        // The forecast rests on the current life's newest reading at this point.
+        let current_life = history.lives_started.last().copied();
+        let last_damage = readings
+            .iter()
+            .rev()
+            .filter(|r| history.life_start_for(r.taken_at.date_naive()) == current_life)
+            .find_map(|r| Some([day_of(r), r.damage_db?]));
+        let late = history.stage_call.as_ref().is_some_and(|c| c.stage >= 4);
         Plot::new(("trend-db", &history.key))
             .height(height)
-            .legend(Legend::default())
+            // Newest readings are on the right: the legend sits top left, over the oldest.
+            .legend(Legend::default().position(Corner::LeftTop))
             .link_axis(link, egui::Vec2b::new(true, false))
+            .y_axis_min_width(Y_AXIS_WIDTH)
             .x_axis_formatter(|m, _| date_label(m.value))
             .y_axis_label("dB over the life's first reading")
             .label_formatter(|hover| Some(hover_label(hover, "dB")))
             .show(ui, |pui| {
                 let mut top = 0.0_f64;
-                for (i, (key, label)) in present
+                for (key, label) in present
                     .iter()
                     .filter(|(k, _)| chosen.iter().any(|c| c == k))
-                    .enumerate()
                 {
-                    let series = db_series(history, &readings, key);
-                    top = series.iter().map(|p| p[1]).fold(top, f64::max);
-                    let colour = palette::TREND_COLOURS[i % palette::TREND_COLOURS.len()];
-                    pui.points(
-                        Points::new("", PlotPoints::new(series.clone()))
-                            .color(colour)
-                            .radius(2.5),
-                    );
-                    pui.line(
-                        Line::new(*label, PlotPoints::new(series))
-                            .color(colour)
-                            .width(1.5),
-                    );
+                    let segments = db_series(history, &readings, key);
+                    let colour = indicator_colour(key);
+                    for seg in &segments {
+                        top = seg.iter().map(|p| p[1]).fold(top, f64::max);
+                        pui.points(
+                            Points::new("", PlotPoints::new(seg.clone()))
+                                .color(colour)
+                                .radius(2.5),
+                        );
+                        pui.line(
+                            Line::new(*label, PlotPoints::new(seg.clone()))
+                                .color(colour)
+                                .width(1.5),
+                        );
+                    }
                     summary.indicators.push((*key).to_owned());
+                    summary.segments.push(((*key).to_owned(), segments.len()));
+                    summary.colours.push(((*key).to_owned(), colour));
+                }
+                let damage = damage_series(history, &readings);
+                if !damage.is_empty() {
+                    for seg in &damage {
+                        top = seg.iter().map(|p| p[1]).fold(top, f64::max);
+                        pui.line(
+                            Line::new(DAMAGE_SERIES, PlotPoints::new(seg.clone()))
+                                .color(palette::FORECAST)
+                                .width(2.0),
+                        );
+                    }
+                    for (name, level) in [
+                        (
+                            "stage-3 level of the damage index (replace by)",
+                            DAMAGE_STAGE3_DB.value,
+                        ),
+                        (
+                            "stage-4 level of the damage index (risk from)",
+                            DAMAGE_STAGE4_DB.value,
+                        ),
+                    ] {
+                        pui.hline(
+                            HLine::new(name, level)
+                                .color(palette::FORECAST.gamma_multiply(0.6))
+                                .style(LineStyle::dotted_loose()),
+                        );
+                    }
+                    top = top.max(DAMAGE_STAGE4_DB.value);
                 }
                 for r in &readings {
                     if let Some(stage) = r.stage {
@@ -204,30 +296,111 @@ impl TrendPanel {
                         summary.staged_readings += 1;
                     }
                 }
-                for d in history.lives_started.iter().skip(1) {
-                    pui.vline(
-                        VLine::new("replacement", date_x(*d))
-                            .color(palette::REPLACEMENT_LINE)
-                            .width(1.5),
-                    );
-                    summary.replacements += 1;
-                }
-                if let Some(f) = &history.forecast {
-                    pui.span(
-                        Span::new("forecast interval", date_x(f.earliest)..=date_x(f.latest))
-                            .fill(palette::FORECAST.gamma_multiply(0.15)),
-                    );
-                    pui.vline(
-                        VLine::new(format!("replace by {}", f.replace_by), date_x(f.replace_by))
-                            .color(palette::FORECAST)
-                            .style(LineStyle::dashed_loose())
-                            .width(2.0),
-                    );
-                    summary.forecast = true;
-                }
+                draw_events(
+                    pui,
+                    history,
+                    &readings,
+                    top,
+                    late,
+                    last_damage,
+                    &mut summary,
+                );
             });
         summary.zone_lines = velocity_ui(ui, history, &readings, link);
         self.summary = summary;
+    }
+}
+
+/// Replacements, notes, and the forecast (interval, replace-by line and the damage-index projection,
+/// or "replace now" at stage 4), drawn over the indicator plot whose highest value is `top`.
+#[allow(
+    clippy::too_many_arguments,
+    reason = "the plot's shared values; a struct would only rename them"
+)]
+fn draw_events(
+    pui: &mut egui_plot::PlotUi<'_>,
+    history: &BearingHistory,
+    readings: &[&ReadingSummary],
+    top: f64,
+    late: bool,
+    last_damage: Option<[f64; 2]>,
+    summary: &mut TrendFrameSummary,
+) {
+    for d in history.lives_started.iter().skip(1) {
+        pui.vline(
+            VLine::new("replacement", date_x(*d))
+                .color(palette::REPLACEMENT_LINE)
+                .width(1.5),
+        );
+        summary.replacements += 1;
+    }
+    for n in &history.notes {
+        pui.vline(
+            VLine::new("notes", date_x(n.on_day))
+                .color(palette::NOTE_LINE)
+                .style(LineStyle::dotted_dense())
+                .width(1.0),
+        );
+        let short: String = n.text.chars().take(28).collect();
+        pui.text(
+            Text::new(
+                "",
+                PlotPoint::new(date_x(n.on_day), top + 2.0),
+                egui::RichText::new(format!("{}: {short}", n.kind)).small(),
+            )
+            .color(palette::NOTE_LINE),
+        );
+        summary.notes += 1;
+    }
+    if late {
+        // Stage 4: no interval to wait through.
+        if let Some(r) = readings.last() {
+            pui.text(
+                Text::new(
+                    "",
+                    PlotPoint::new(day_of(r), top + 8.0),
+                    egui::RichText::new("replace now").strong(),
+                )
+                .color(palette::stage_colour(Some(4))),
+            );
+            summary.replace_now = true;
+        }
+    } else if let Some(f) = &history.forecast {
+        pui.span(
+            Span::new("forecast interval", date_x(f.earliest)..=date_x(f.latest))
+                .fill(palette::FORECAST.gamma_multiply(0.15)),
+        );
+        pui.vline(
+            VLine::new(format!("replace by {}", f.replace_by), date_x(f.replace_by))
+                .color(palette::FORECAST)
+                .style(LineStyle::dashed_loose())
+                .width(2.0),
+        );
+        summary.forecast = true;
+        // The projection: from the newest damage index to the stage-3 level on the
+        // replace-by date, then to the stage-4 level on the risk date.
+        if let Some(start) = last_damage {
+            let mut line = vec![start];
+            let rb = [date_x(f.replace_by), DAMAGE_STAGE3_DB.value];
+            if rb[0] > start[0] && start[1] < DAMAGE_STAGE3_DB.value {
+                line.push(rb);
+            }
+            if let Some(risk) = f.risk_from {
+                let rf = [date_x(risk), DAMAGE_STAGE4_DB.value];
+                if line.last().is_some_and(|p| rf[0] > p[0]) {
+                    line.push(rf);
+                }
+            }
+            if line.len() >= 2 {
+                pui.line(
+                    Line::new("projection", PlotPoints::new(line))
+                        .color(palette::FORECAST)
+                        .style(LineStyle::dashed_dense())
+                        .width(2.0),
+                );
+                summary.projection = true;
+            }
+        }
     }
 }
 
@@ -245,31 +418,46 @@ fn velocity_ui(
         ui.label("No overall velocity stored for this point.");
         return false;
     };
-    let series: Vec<[f64; 2]> = readings
-        .iter()
-        .filter_map(|r| Some([day_of(r), *r.scalars.get(*key)?]))
-        .collect();
+    // One segment per bearing life: never joined across a replacement.
+    let mut segments: Vec<Vec<[f64; 2]>> = Vec::new();
+    let mut life_of_last = None;
+    for r in readings {
+        let Some(v) = r.scalars.get(*key).copied() else {
+            continue;
+        };
+        let life = history.life_start_for(r.taken_at.date_naive());
+        if segments.is_empty() || life_of_last != Some(life) {
+            segments.push(Vec::new());
+            life_of_last = Some(life);
+        }
+        if let Some(seg) = segments.last_mut() {
+            seg.push([day_of(r), v]);
+        }
+    }
     let group = Some(history.iso_group);
     let support = history.iso_support;
     let mut drawn = false;
     Plot::new(("trend-velocity", &history.key))
         .height((ui.available_height() - 4.0).max(100.0))
-        .legend(Legend::default())
+        .legend(Legend::default().position(Corner::LeftTop))
         .link_axis(link, egui::Vec2b::new(true, false))
+        .y_axis_min_width(Y_AXIS_WIDTH)
         .x_axis_formatter(|m, _| date_label(m.value))
         .y_axis_label("velocity RMS, mm/s")
         .include_y(0.0)
         .label_formatter(|hover| Some(hover_label(hover, "mm/s")))
         .show(ui, |pui| {
-            pui.points(
-                Points::new("", PlotPoints::new(series.clone()))
-                    .color(palette::TREND_COLOURS[0])
-                    .radius(2.5),
-            );
-            pui.line(
-                Line::new("overall velocity", PlotPoints::new(series))
-                    .color(palette::TREND_COLOURS[0]),
-            );
+            for seg in segments {
+                pui.points(
+                    Points::new("", PlotPoints::new(seg.clone()))
+                        .color(palette::TREND_COLOURS[0])
+                        .radius(2.5),
+                );
+                pui.line(
+                    Line::new("overall velocity", PlotPoints::new(seg))
+                        .color(palette::TREND_COLOURS[0]),
+                );
+            }
             if let Some(group) = group {
                 let [ab, bc, cd] = zone_boundaries_mm_s(group, support);
                 for (name, v) in [

@@ -198,19 +198,30 @@ fn need_ui(
                     .color(WARNING_TEXT),
             );
         }
-        match board.suggestion(need) {
-            Some(outage) => {
-                ui.horizontal(|ui| {
-                    ui.label(format!("Suggested: {}", outage.name));
+        if let Some(outage) = board.suggestion(need) {
+            ui.horizontal(|ui| {
+                ui.label(format!("Suggested: {}", outage.name));
+                let accept = ui
+                    .button(format!("Plan {} in {}", bearing_label(&need.life), outage.name))
+                    .on_hover_text("The last outage that takes this machine down before the replace-by date");
+                if accept.clicked() {
+                    changes.push(PlanChange::Assign { life_id: need.life.life_id, outage_id: outage.id });
+                }
+            });
+        } else {
+            warnings_ui(ui, &board.open_need_warnings(need));
+            // Overdue or nothing in time: the next outage that takes the machine down, late.
+            if let Some(outage) = board.late_offer(need) {
+                ui.horizontal_wrapped(|ui| {
+                    ui.label(format!("Next outage that takes it down: {} (starts {})", outage.name, outage.start));
                     let accept = ui
-                        .button(format!("Plan {} in {}", bearing_label(&need.life), outage.name))
-                        .on_hover_text("The last outage that takes this machine down before the replace-by date");
+                        .button(format!("Plan {} in {} (late)", bearing_label(&need.life), outage.name))
+                        .on_hover_text("After the replace-by date: an unplanned stop sooner is safer");
                     if accept.clicked() {
                         changes.push(PlanChange::Assign { life_id: need.life.life_id, outage_id: outage.id });
                     }
                 });
             }
-            None => warnings_ui(ui, &board.open_need_warnings(need)),
         }
     });
 }

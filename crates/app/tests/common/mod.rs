@@ -345,6 +345,7 @@ pub fn harness_on(
         screenshot: None,
         cautions_acknowledged,
         today: Some(today.parse().expect("a valid date")),
+        no_file_dialog: true,
     };
     Harness::builder()
         .with_size(egui::vec2(1400.0, 900.0))
