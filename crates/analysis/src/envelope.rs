@@ -55,7 +55,7 @@ impl PreparedSignal {
         let mut spec = engine.rfft(&centred);
         if prewhiten {
             for c in &mut spec {
-                let m = c.norm();
+                let m = c.norm_sqr().sqrt();
                 *c = if m > 0.0 {
                     *c / m
                 } else {
@@ -78,7 +78,7 @@ impl PreparedSignal {
     /// colouring. Returns the share of spectral power removed.
     pub fn remove_discrete_lines(&mut self, factor: f64, shaft_hz: Option<f64>) -> f64 {
         let df = self.freq_step_hz();
-        let mags: Vec<f64> = self.spec.iter().map(|c| c.norm()).collect();
+        let mags: Vec<f64> = self.spec.iter().map(|c| c.norm_sqr().sqrt()).collect();
         let n = mags.len();
         let half = 64;
         let mut win = Vec::with_capacity(40);
@@ -86,6 +86,15 @@ impl PreparedSignal {
         for k in 1..n {
             let m = mags[k];
             total += m * m;
+            let f = k as f64 * df;
+            let synchronous = shaft_hz.is_none_or(|fr| {
+                let h = (f / fr).round();
+                fr > 0.0 && h >= 1.0 && (f - h * fr).abs() <= (2.0 * df).max(1e-3 * f)
+            });
+            // The local median (of the unmodified magnitudes) only matters for a line that may go.
+            if !synchronous || m <= 0.0 {
+                continue;
+            }
             win.clear();
             let a = k.saturating_sub(half).max(1);
             let b = (k + half).min(n - 1);
@@ -93,12 +102,7 @@ impl PreparedSignal {
             let mid = win.len() / 2;
             let (_, med, _) = win.select_nth_unstable_by(mid, f64::total_cmp);
             let med = *med;
-            let f = k as f64 * df;
-            let synchronous = shaft_hz.is_none_or(|fr| {
-                let h = (f / fr).round();
-                fr > 0.0 && h >= 1.0 && (f - h * fr).abs() <= (2.0 * df).max(1e-3 * f)
-            });
-            if synchronous && m > factor * med && m > 0.0 {
+            if m > factor * med {
                 removed += m * m - med * med;
                 self.spec[k] *= med / m;
             }
@@ -330,7 +334,7 @@ pub fn limited_squared_envelope_spectrum(
     let keep = (lines.floor() as usize).clamp(1, m / 2);
     let values = e[..keep]
         .iter()
-        .map(|c| 2.0 * c.norm() / m as f64)
+        .map(|c| 2.0 * c.norm_sqr().sqrt() / m as f64)
         .collect();
     Ok(Spectrum {
         freq_step_hz: sig.freq_step_hz(),

@@ -16,7 +16,7 @@ use rustfft::num_complex::Complex;
 use serde::{Deserialize, Serialize};
 
 use crate::AnalysisError;
-use crate::window::{Window, window_stats};
+use crate::window::Window;
 
 /// Standard gravity, m/s² per g.
 pub const STANDARD_GRAVITY: f64 = 9.806_65;
@@ -276,7 +276,8 @@ impl SpectrumEngine {
             freq_step_hz: fs_hz / n as f64,
             values: acc,
             scaling: p.scaling,
-            enbw_hz: window_stats(&w).enbw_bins * fs_hz / n as f64,
+            // ENBW in bins, N·Σw²/(Σw)² (REFERENCES §7.1), from the sums already taken.
+            enbw_hz: n as f64 * s2 / (s1 * s1) * fs_hz / n as f64,
             segments,
         })
     }

@@ -25,6 +25,7 @@ use egui_kittest::{Harness, HarnessBuilder};
 use plan_fixture::d;
 use spallcast_app::plan_view::{PlanPanel, PlanView};
 use spallcast_plan::Forecast;
+use spallcast_plan::source::PlanChange;
 use spallcast_store::{PlanStatus, Store};
 
 struct Fixture {
@@ -253,4 +254,51 @@ fn the_form_explains_a_bad_date() {
         view.editor.input().unwrap_err(),
         "the last day is before the first day"
     );
+}
+
+/// Issue 17 item 6: at 1280x720 a planned row with long warnings stayed on one line and drew over
+/// the next column, and buttons covered text. Every widget of the planned row stays left of the
+/// needs column, and no two of them overlap.
+#[test]
+fn planned_rows_stay_in_their_column_at_1280_by_720() {
+    let mut fx = fixture();
+    let p2 = life_of(&fx.store, "IN-P2");
+    let filters = outage_id(&fx.store, "Filter hall stop");
+    spallcast_plan::source::apply_change(
+        &mut fx.store,
+        &PlanChange::Assign {
+            life_id: p2,
+            outage_id: filters,
+        },
+    )
+    .unwrap();
+    fx.panel.reload(&fx.store).unwrap();
+    // The window at 1280x720 less the plant tree (270 px): what the plan view gets.
+    let mut h = HarnessBuilder::default()
+        .with_size(egui::vec2(1010.0, 720.0))
+        .build_ui_state(|ui, fx: &mut Fixture| fx.panel.ui(ui, &mut fx.store), fx);
+    h.run();
+    let right_column = h
+        .get_by_label(spallcast_app::plan_view::NEEDS_HEADING)
+        .rect()
+        .min
+        .x;
+    let mut rects = vec![h.get_by_label("IN-P2 MDE").rect()];
+    for b in ["Remove", "Cancel", "Mark done…"] {
+        rects.push(h.get_by_label(b).rect());
+    }
+    for w in h.query_all_by_label_contains("does not take machine IN-P2 down") {
+        rects.push(w.rect());
+    }
+    for r in &rects {
+        assert!(
+            r.max.x <= right_column + 0.5,
+            "{r:?} reaches into the needs column (from x = {right_column})"
+        );
+    }
+    for (i, a) in rects.iter().enumerate() {
+        for b in &rects[i + 1..] {
+            assert!(a.intersect(*b).area() <= 0.5, "{a:?} and {b:?} overlap");
+        }
+    }
 }

@@ -1,14 +1,20 @@
 //! The reading analyzer: `spallcast_analysis::diagnose` behind the store's `ReadingAnalyzer` trait.
 
+use std::cell::RefCell;
 use std::collections::BTreeMap;
 
 use spallcast_analysis::stage::{ReadingIndicators, ToneUse, keys};
-use spallcast_analysis::{DiagnoseOptions, diagnose};
+use spallcast_analysis::{DiagnoseOptions, SpectrumEngine, diagnose_with};
 use spallcast_store::{AnalysisInput, AnalysisOutput, ReadingAnalyzer};
 
 /// Version of the analysis recorded beside every stored result. Change it whenever the analysis or the
 /// scalars it produces change: the store then recomputes older results (`Store::reanalyze_stale`).
 pub const ANALYZER_VERSION: &str = "spallcast-analysis-3";
+
+thread_local! {
+    /// One engine per import thread: its FFT plans and windows are built once, not per reading.
+    static ENGINE: RefCell<SpectrumEngine> = RefCell::new(SpectrumEngine::new());
+}
 
 /// Runs the full diagnosis on each imported reading.
 #[derive(Debug, Clone, Copy, Default)]
@@ -32,14 +38,18 @@ impl ReadingAnalyzer for SpallcastAnalyzer {
             iso_support: input.iso_support,
             ..DiagnoseOptions::default()
         };
-        let diagnosis = diagnose(
-            &samples,
-            input.sample_rate_hz,
-            input.shaft_hz,
-            &factors,
-            &options,
-        )
-        .map_err(|e| format!("analysis failed: {e}"))?;
+        let diagnosis = ENGINE
+            .with(|engine| {
+                diagnose_with(
+                    &mut engine.borrow_mut(),
+                    &samples,
+                    input.sample_rate_hz,
+                    input.shaft_hz,
+                    &factors,
+                    &options,
+                )
+            })
+            .map_err(|e| format!("analysis failed: {e}"))?;
         // One set of trend-scalar names (`stage.*`, see `keys`): the stage indicators, plus the peak
         // and the band energies that the stage logic does not read but the trends show.
         let mut scalars: BTreeMap<String, f64> =

@@ -89,6 +89,14 @@ pub(crate) fn tonal_fraction(psd: &PowerSpectrum, lo_hz: f64, fs: f64, shaft_hz:
     for k in k_lo..=k_hi {
         let p = v[k];
         total += p;
+        let f = k as f64 * df;
+        let h = (f / shaft_hz).round();
+        let synchronous =
+            shaft_hz > 0.0 && h >= 1.0 && (f - h * shaft_hz).abs() <= (2.0 * df).max(2e-4 * f);
+        // The neighbourhood median only matters for a line that is shaft-synchronous.
+        if !synchronous {
+            continue;
+        }
         win.clear();
         let a = k.saturating_sub(half);
         let b = (k + half).min(v.len() - 1);
@@ -96,11 +104,7 @@ pub(crate) fn tonal_fraction(psd: &PowerSpectrum, lo_hz: f64, fs: f64, shaft_hz:
         let mid = win.len() / 2;
         let (_, med, _) = win.select_nth_unstable_by(mid, f64::total_cmp);
         let med = *med;
-        let f = k as f64 * df;
-        let h = (f / shaft_hz).round();
-        let synchronous =
-            shaft_hz > 0.0 && h >= 1.0 && (f - h * shaft_hz).abs() <= (2.0 * df).max(2e-4 * f);
-        if synchronous && p > 10.0 * med {
+        if p > 10.0 * med {
             tonal += p - med;
         }
     }

@@ -381,8 +381,13 @@ pub fn diagnose_with(
         })
         .map(|(_, v)| *v)
         .collect();
-    in_band.sort_by(f64::total_cmp);
-    let noise_floor_g = in_band.get(in_band.len() / 2).copied().unwrap_or(0.0);
+    // The median line (the element a full sort would put in the middle).
+    let mid = in_band.len() / 2;
+    let noise_floor_g = if in_band.is_empty() {
+        0.0
+    } else {
+        *in_band.select_nth_unstable_by(mid, f64::total_cmp).1
+    };
     let best = findings.first();
     let stage_indicators = StageIndicators {
         bands,

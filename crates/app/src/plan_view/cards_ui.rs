@@ -9,7 +9,7 @@ use crate::palette::stage_badge_ui;
 
 /// Name, dates and scope of an outage, with a button that loads it into the editor.
 pub(super) fn outage_header_ui(ui: &mut egui::Ui, outage: &Outage, editor: &mut OutageEditor) {
-    ui.horizontal(|ui| {
+    ui.horizontal_wrapped(|ui| {
         ui.strong(&outage.name);
         ui.label(format!(
             "{} to {} ({} days)",
@@ -59,7 +59,7 @@ pub(super) fn task_ui(
     done_form: &mut Option<(i64, String, String)>,
     changes: &mut Vec<PlanChange>,
 ) {
-    ui.horizontal(|ui| {
+    ui.horizontal_wrapped(|ui| {
         stage_badge_ui(ui, entry.forecast.as_ref().map(|f| f.stage));
         if entry.status == PlanStatus::Planned {
             // A planned bearing can be dragged on to another outage.
@@ -112,7 +112,7 @@ pub(super) fn task_ui(
     if let Some((id, date, found)) = done_form.as_mut().filter(|f| f.0 == entry.id) {
         let id = *id;
         let mut close = false;
-        ui.horizontal(|ui| {
+        ui.horizontal_wrapped(|ui| {
             let label = ui.label("Replaced on");
             ui.add(egui::TextEdit::singleline(date).desired_width(90.0))
                 .labelled_by(label.id);
@@ -174,7 +174,7 @@ fn need_ui(
 ) {
     egui::Frame::group(ui.style()).inner_margin(4.0).show(ui, |ui| {
         ui.set_min_width(ui.available_width());
-        ui.horizontal(|ui| {
+        ui.horizontal_wrapped(|ui| {
             stage_badge_ui(ui, Some(need.forecast.stage));
             let id = egui::Id::unique(("plan_need", need.life.life_id));
             ui.dnd_drag_source(id, PlanDrag { life_id: need.life.life_id }, |ui| {
@@ -199,7 +199,7 @@ fn need_ui(
             );
         }
         if let Some(outage) = board.suggestion(need) {
-            ui.horizontal(|ui| {
+            ui.horizontal_wrapped(|ui| {
                 ui.label(format!("Suggested: {}", outage.name));
                 let accept = ui
                     .button(format!("Plan {} in {}", bearing_label(&need.life), outage.name))
