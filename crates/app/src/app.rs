@@ -95,6 +95,8 @@ pub struct SpallcastApp {
     pub(crate) screenshot: Option<ScreenshotPlan>,
     /// The typed-path prompt, when the file dialog could not be shown.
     pub(crate) path_prompt: Option<crate::path_prompt::PathPrompt>,
+    /// A note or baseline change is on its way to the data thread.
+    pub(crate) annotating: bool,
     no_file_dialog: bool,
     persist: bool,
 }
@@ -152,6 +154,7 @@ impl SpallcastApp {
             change_check_pending: false,
             screenshot: options.screenshot.map(ScreenshotPlan::new),
             path_prompt: None,
+            annotating: false,
             no_file_dialog: options.no_file_dialog,
             persist,
         };
@@ -239,6 +242,7 @@ impl SpallcastApp {
     /// Whether any background work is in flight (loading, computing, importing).
     pub fn is_busy(&self) -> bool {
         self.plant_loading
+            || self.annotating
             || self.plan_loading
             || self.history_loading
             || self.import.is_some()
@@ -317,7 +321,7 @@ impl SpallcastApp {
             }
             Action::Annotate(change) => {
                 if let (Some(worker), Some(key)) = (&self.worker, self.selected.clone()) {
-                    worker.send(Request::Annotate(key, change));
+                    self.annotating = worker.send(Request::Annotate(key, change));
                 }
             }
             Action::StepMonth(step) => {

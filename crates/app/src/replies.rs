@@ -117,14 +117,17 @@ impl SpallcastApp {
                     self.plant_loading = worker.send(Request::Plant);
                 }
             }
-            Reply::Annotated(_key, result) => match result {
-                Ok(message) => {
-                    self.set_status(message, false);
-                    // The tree, the due list and the bearing's history read the change back.
-                    self.reload_all();
+            Reply::Annotated(_key, result) => {
+                self.annotating = false;
+                match result {
+                    Ok(message) => {
+                        self.set_status(message, false);
+                        // The tree, the due list and the bearing's history read the change back.
+                        self.reload_all();
+                    }
+                    Err(e) => self.set_status(format!("not saved: {e}"), true),
                 }
-                Err(e) => self.set_status(format!("not saved: {e}"), true),
-            },
+            }
             Reply::ChangedElsewhere(changed) => {
                 self.change_check_pending = false;
                 if changed && !self.plant_loading {

@@ -80,24 +80,51 @@ pub fn read_wav(path: &Path) -> Result<Recording, FormatError> {
     ) && container_bytes(&crate::read_head(path, HEAD_BYTES)?) == Some(bits / 8);
     if bulk {
         use std::io::Read as _;
+        let width = usize::from(bits / 8);
         let byte_count = usize::try_from(claimed * u64::from(bits / 8)).unwrap_or(usize::MAX);
-        let mut data = Vec::with_capacity(byte_count.min(usize::try_from(file_len).unwrap_or(0)));
-        reader
-            .into_inner()
-            .take(byte_count as u64)
-            .read_to_end(&mut data)
-            .map_err(io_err)?;
-        if data.len() != byte_count {
+        // Blocks of whole frames (every channel's sample), about 1 MiB: the raw bytes of a long
+        // recording are never held beside its decoded samples.
+        let frame = width * channel_count.max(1);
+        let block = (1 << 20) / frame * frame;
+        let mut source = reader.into_inner().take(byte_count as u64);
+        let mut data = vec![0u8; block.max(frame)];
+        let mut read_total = 0usize;
+        let mut index = 0usize;
+        loop {
+            let mut filled = 0;
+            while filled < data.len() {
+                let n = source.read(&mut data[filled..]).map_err(io_err)?;
+                if n == 0 {
+                    break;
+                }
+                filled += n;
+            }
+            if filled == 0 {
+                break;
+            }
+            read_total += filled;
+            let whole = filled / width * width;
+            decode_interleaved_from(
+                &data[..whole],
+                spec.sample_format,
+                bits,
+                &mut channels,
+                index,
+            );
+            index += whole / width;
+            if filled < data.len() {
+                break;
+            }
+        }
+        if read_total != byte_count {
             return Err(wav_err(
                 path,
                 format!(
-                    "the file ends before the samples its header announces (truncated: {} of {byte_count} \
-                     data bytes)",
-                    data.len()
+                    "the file ends before the samples its header announces (truncated: {read_total} of \
+                     {byte_count} data bytes)"
                 ),
             ));
         }
-        decode_interleaved(&data, spec.sample_format, bits, &mut channels);
         return Ok(Recording {
             channels,
             sample_rate_hz: f64::from(spec.sample_rate),
@@ -170,11 +197,20 @@ fn container_bytes(head: &[u8]) -> Option<u16> {
 
 /// Converts little-endian interleaved samples as [`read_wav`] defines: integers scaled to ±1.0 full
 /// scale (8-bit WAV is unsigned with an offset of 128), floats as stored.
-fn decode_interleaved(data: &[u8], format: SampleFormat, bits: u16, channels: &mut [Vec<f32>]) {
+/// Decodes interleaved samples whose first has the overall index `first` (so channels stay in turn
+/// across blocks).
+fn decode_interleaved_from(
+    data: &[u8],
+    format: SampleFormat,
+    bits: u16,
+    channels: &mut [Vec<f32>],
+    first: usize,
+) {
     let full_scale = f64::from(1u32 << (bits.max(1) - 1));
     let int = |v: i32| (f64::from(v) / full_scale) as f32;
     let width = usize::from(bits / 8);
-    for (i, b) in data.chunks_exact(width).enumerate() {
+    for (j, b) in data.chunks_exact(width).enumerate() {
+        let i = first + j;
         let s = match (format, width) {
             (SampleFormat::Float, 4) => f32::from_le_bytes([b[0], b[1], b[2], b[3]]),
             (_, 1) => int(i32::from(b[0]) - 128),

@@ -16,6 +16,22 @@ thread_local! {
     static ENGINE: RefCell<SpectrumEngine> = RefCell::new(SpectrumEngine::new());
 }
 
+/// Longest stretch of a recording that is analysed: 2^21 samples (20.5 s at 102.4 kHz, 82 s at
+/// 25.6 kHz). A longer recording is analysed on its middle stretch of this length (its envelope
+/// spectrum still resolves 0.05 Hz at 102.4 kHz, far finer than any fault-frequency slip), so the
+/// memory of an import does not grow with a recording's length; the stored document says which
+/// samples were analysed. The whole recording is still stored.
+pub const MAX_ANALYSED_SAMPLES: usize = 1 << 21;
+
+/// The stretch of `n` samples that is analysed: `(start, len)`.
+pub fn analysed_segment(n: usize) -> (usize, usize) {
+    if n <= MAX_ANALYSED_SAMPLES {
+        (0, n)
+    } else {
+        ((n - MAX_ANALYSED_SAMPLES) / 2, MAX_ANALYSED_SAMPLES)
+    }
+}
+
 /// Runs the full diagnosis on each imported reading.
 #[derive(Debug, Clone, Copy, Default)]
 pub struct SpallcastAnalyzer;
@@ -32,7 +48,11 @@ impl ReadingAnalyzer for SpallcastAnalyzer {
                     .to_owned(),
             );
         };
-        let samples: Vec<f64> = input.samples_g.iter().map(|&v| f64::from(v)).collect();
+        let (start, len) = analysed_segment(input.samples_g.len());
+        let samples: Vec<f64> = input.samples_g[start..start + len]
+            .iter()
+            .map(|&v| f64::from(v))
+            .collect();
         let options = DiagnoseOptions {
             iso_group: input.iso_group,
             iso_support: input.iso_support,
@@ -67,12 +87,39 @@ impl ReadingAnalyzer for SpallcastAnalyzer {
             scalars.insert(keys::band_rms_g(&b.name), b.rms_g);
         }
         scalars.retain(|_, v| v.is_finite());
-        let document = serde_json::to_value(&diagnosis)
+        let mut document = serde_json::to_value(&diagnosis)
             .map_err(|e| format!("analysis result not storable: {e}"))?;
+        if len < input.samples_g.len()
+            && let Some(doc) = document.as_object_mut()
+        {
+            doc.insert(
+                "analysed_samples".to_owned(),
+                serde_json::json!({ "start": start, "len": len, "of": input.samples_g.len() }),
+            );
+        }
         Ok(AnalysisOutput {
             scalars,
             document,
             diagnosis: Some(diagnosis.diagnosis.clone()),
         })
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn long_recordings_are_analysed_on_their_middle_stretch() {
+        assert_eq!(analysed_segment(1000), (0, 1000));
+        assert_eq!(
+            analysed_segment(MAX_ANALYSED_SAMPLES),
+            (0, MAX_ANALYSED_SAMPLES)
+        );
+        let n = 61_440_000; // 10 minutes at 102.4 kHz
+        let (start, len) = analysed_segment(n);
+        assert_eq!(len, MAX_ANALYSED_SAMPLES);
+        assert_eq!(start + len / 2, n / 2, "centred");
+        assert!(start + len <= n);
     }
 }

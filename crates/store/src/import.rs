@@ -16,7 +16,7 @@ use spallcast_formats::{ManifestRow, Units};
 
 use crate::analyzer::{AnalysisInput, AnalysisOutput, FaultFactors, ReadingAnalyzer};
 use crate::error::{Result, StoreError};
-use crate::queries::{encode_waveform, factors_from_row};
+use crate::queries::factors_from_row;
 use crate::{Store, now_text, utc_text};
 
 /// A recording with at least this fraction of its samples on a clipping plateau is imported but flagged
@@ -245,17 +245,23 @@ fn hash_file(path: &Path, root: &Path) -> std::result::Result<String, String> {
 /// Decodes, checks, converts to g and analyses one recording.
 fn prepare(work: &Work, analyzer: &dyn ReadingAnalyzer) -> std::result::Result<Prepared, String> {
     let row = &work.row;
-    let rec = spallcast_formats::read_recording(&work.path, row.sample_rate_hz)
+    let mut rec = spallcast_formats::read_recording(&work.path, row.sample_rate_hz)
         .map_err(|e| e.to_string())?;
     spallcast_formats::validate(&rec, &work.path).map_err(|e| e.to_string())?;
-    let Some(raw) = rec.channel(row.channel) else {
+    // Channels are numbered from 1. The channel is taken, not copied: a long recording is held once.
+    let index = usize::try_from(row.channel)
+        .ok()
+        .and_then(|c| c.checked_sub(1))
+        .filter(|i| *i < rec.channels.len());
+    let Some(index) = index else {
         return Err(format!(
             "channel {} asked for, but the file has {} channel(s)",
             row.channel,
             rec.channels.len()
         ));
     };
-    let clipped_fraction = spallcast_formats::clipping_fraction(raw);
+    let raw = rec.channels.swap_remove(index);
+    let clipped_fraction = spallcast_formats::clipping_fraction(&raw);
     let scale = match row.units {
         Units::G => 1.0,
         Units::MetresPerSecond2 => 1.0 / STANDARD_GRAVITY,
@@ -270,11 +276,12 @@ fn prepare(work: &Work, analyzer: &dyn ReadingAnalyzer) -> std::result::Result<P
             1.0 / s
         }
     };
-    let samples_g: Vec<f32> = if (scale - 1.0).abs() < f64::EPSILON {
-        raw.to_vec()
-    } else {
-        raw.iter().map(|&x| (f64::from(x) * scale) as f32).collect()
-    };
+    let mut samples_g = raw;
+    if (scale - 1.0).abs() >= f64::EPSILON {
+        for x in &mut samples_g {
+            *x = (f64::from(*x) * scale) as f32;
+        }
+    }
     let sample_rate_hz = rec.sample_rate_hz;
     drop(rec);
     if let Some(i) = samples_g.iter().position(|s| !s.is_finite()) {
@@ -335,16 +342,18 @@ fn insert_reading(
     let utc = utc_text(r.taken_at.with_timezone(&Utc));
     let day = r.taken_at.date_naive();
     let suspect = (r.clipped_fraction >= CLIPPED_FRACTION_THRESHOLD).then_some("clipped");
-    let blob = (!r.samples_g.is_empty()).then(|| encode_waveform(r.samples_g));
+    // The waveform goes in as a zero-filled blob of its size, then is written in blocks through
+    // SQLite's incremental blob I/O: a long recording is never copied whole into bytes.
+    let blob_bytes = (!r.samples_g.is_empty()).then(|| r.samples_g.len() as i64 * 4);
     let id: Option<i64> = tx
         .prepare_cached(
             "INSERT INTO reading (point_id, position_id, life_id, taken_at_utc, utc_offset_s, route_day, shaft_hz,
-                sample_rate_hz, units, sample_count, waveform, source_file, content_sha256, suspect, clipped_fraction,
+                sample_rate_hz, units, sample_count, source_file, content_sha256, suspect, clipped_fraction,
                 imported_at)
              SELECT pt.id, pt.position_id,
                 (SELECT l.id FROM bearing_life l WHERE l.position_id = pt.position_id AND l.installed <= ?5
                    AND (l.removed IS NULL OR ?5 < l.removed) ORDER BY l.installed DESC LIMIT 1),
-                ?2, ?3, ?5, ?4, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14
+                ?2, ?3, ?5, ?4, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13
              FROM point pt WHERE pt.id = ?1
              ON CONFLICT (content_sha256, point_id, taken_at_utc) DO NOTHING
              RETURNING id",
@@ -359,7 +368,6 @@ fn insert_reading(
                 r.sample_rate_hz,
                 r.units,
                 r.samples_g.len() as i64,
-                blob,
                 r.source_file,
                 r.content_sha256,
                 suspect,
@@ -370,8 +378,30 @@ fn insert_reading(
         )
         .optional()?;
     let Some(id) = id else { return Ok(None) };
+    if let Some(bytes) = blob_bytes {
+        tx.prepare_cached("INSERT INTO waveform (reading_id, samples) VALUES (?1, zeroblob(?2))")?
+            .execute(params![id, bytes])?;
+        write_waveform_blob(tx, id, r.samples_g)?;
+    }
     write_results(tx, id, output, version, now)?;
     Ok(Some(id))
+}
+
+/// Writes `samples` (little-endian f32) into the zero-filled waveform blob of reading `id`, in blocks.
+fn write_waveform_blob(tx: &Transaction<'_>, id: i64, samples: &[f32]) -> Result<()> {
+    use std::io::Write as _;
+    let mut blob = tx.blob_open(rusqlite::MAIN_DB, "waveform", "samples", id, false)?;
+    let mut bytes = Vec::with_capacity(64 * 1024 * 4);
+    for block in samples.chunks(64 * 1024) {
+        bytes.clear();
+        for s in block {
+            bytes.extend_from_slice(&s.to_le_bytes());
+        }
+        blob.write_all(&bytes).map_err(|e| {
+            crate::error::StoreError::Invalid(format!("writing the waveform of reading {id}: {e}"))
+        })?;
+    }
+    Ok(())
 }
 
 /// Writes (or replaces) the analysis document and scalars of a reading.
@@ -779,7 +809,8 @@ impl Store {
             .conn
             .prepare(
                 "SELECT r.id FROM reading r LEFT JOIN analysis a ON a.reading_id = r.id
-                 WHERE r.waveform IS NOT NULL AND a.version IS NOT ?1 ORDER BY r.id",
+                 WHERE EXISTS (SELECT 1 FROM waveform w WHERE w.reading_id = r.id)
+                   AND a.version IS NOT ?1 ORDER BY r.id",
             )?
             .query_map([&version], |r| r.get(0))?
             .collect::<Result<Vec<_>, _>>()?;
@@ -826,7 +857,8 @@ impl Store {
         let (blob, rate, shaft, group, support, factors) = self
             .conn
             .prepare_cached(
-                "SELECT r.waveform, r.sample_rate_hz, r.shaft_hz, m.iso_group, m.iso_support,
+                "SELECT (SELECT w.samples FROM waveform w WHERE w.reading_id = r.id), r.sample_rate_hz,
+                        r.shaft_hz, m.iso_group, m.iso_support,
                         bt.ftf, bt.bsf, bt.bpfo, bt.bpfi, bt.rolling_elements, bt.element_diameter_mm,
                         bt.pitch_diameter_mm, bt.contact_angle_deg
                  FROM reading r JOIN bearing_position bp ON bp.id = r.position_id

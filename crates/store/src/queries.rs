@@ -120,15 +120,6 @@ pub(crate) fn decode_waveform(blob: &[u8]) -> Vec<f32> {
         .collect()
 }
 
-/// Encodes samples as a waveform BLOB (f32 little-endian).
-pub(crate) fn encode_waveform(samples: &[f32]) -> Vec<u8> {
-    let mut out = Vec::with_capacity(samples.len() * 4);
-    for s in samples {
-        out.extend_from_slice(&s.to_le_bytes());
-    }
-    out
-}
-
 impl Store {
     /// The plant hierarchy: areas → machines → bearing positions → points, in plant-file order.
     pub fn plant_tree(&self) -> Result<PlantTree> {
@@ -354,8 +345,9 @@ impl Store {
             let meta = self.reading(id)?;
             let blob: Option<Vec<u8>> = self
                 .conn
-                .prepare_cached("SELECT waveform FROM reading WHERE id = ?1")?
-                .query_row([id], |r| r.get(0))?;
+                .prepare_cached("SELECT samples FROM waveform WHERE reading_id = ?1")?
+                .query_row([id], |r| r.get(0))
+                .optional()?;
             out.push(Waveform {
                 meta,
                 samples_g: blob.as_deref().map(decode_waveform).unwrap_or_default(),

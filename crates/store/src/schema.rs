@@ -247,6 +247,18 @@ CREATE TABLE baseline_change (
     changed_at TEXT NOT NULL
 );
 ",
+    // 7: waveforms in a table of their own, the blob as the row's last column. SQLite writes a
+    // trailing zero-filled blob without building it in memory, and the import then fills it in
+    // blocks through incremental blob I/O, so a long recording is not copied whole while stored.
+    r"
+CREATE TABLE waveform (
+    reading_id INTEGER PRIMARY KEY REFERENCES reading(id) ON DELETE CASCADE,
+    samples BLOB NOT NULL
+);
+INSERT INTO waveform (reading_id, samples)
+    SELECT id, waveform FROM reading WHERE waveform IS NOT NULL;
+ALTER TABLE reading DROP COLUMN waveform;
+",
 ];
 
 impl Store {
@@ -733,6 +745,58 @@ INSERT INTO stage_call VALUES (1, 2, 'spallcast-stage-1', '{"call":{"stage":2},"
             evidence[1], r#"{"evidence":["x"]}"#,
             "other shapes left alone"
         );
+    }
+
+    #[test]
+    fn migration_7_moves_waveforms_to_their_own_table() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("v6.db");
+        {
+            let store = Store::open_to_version(&path, 6).unwrap();
+            store
+                .conn
+                .pragma_update(None, "foreign_keys", "OFF")
+                .unwrap();
+            store
+                .conn
+                .execute_batch(
+                    "INSERT INTO reading (id, point_id, position_id, taken_at_utc, utc_offset_s, route_day,
+                        shaft_hz, sample_rate_hz, units, sample_count, waveform, source_file,
+                        content_sha256, imported_at)
+                     VALUES (1, 1, 1, 't', 0, '2026-01-01', 25.0, 1000.0, 'g', 2, x'0000803f000000c0',
+                        'a.wav', 'h1', 'now'),
+                        (2, 1, 1, 't2', 0, '2026-01-01', 25.0, 1000.0, 'g', 0, NULL, 'b.wav', 'h2', 'now');",
+                )
+                .unwrap();
+        }
+        let store = Store::open(&path).unwrap();
+        let rows: Vec<(i64, Vec<u8>)> = store
+            .conn
+            .prepare("SELECT reading_id, samples FROM waveform ORDER BY reading_id")
+            .unwrap()
+            .query_map([], |r| Ok((r.get(0)?, r.get(1)?)))
+            .unwrap()
+            .map(Result::unwrap)
+            .collect();
+        assert_eq!(
+            rows.len(),
+            1,
+            "a reading without samples has no waveform row"
+        );
+        assert_eq!(
+            crate::queries::decode_waveform(&rows[0].1),
+            vec![1.0_f32, -2.0],
+            "the samples moved intact"
+        );
+        let has_column: i64 = store
+            .conn
+            .query_row(
+                "SELECT count(*) FROM pragma_table_info('reading') WHERE name = 'waveform'",
+                [],
+                |r| r.get(0),
+            )
+            .unwrap();
+        assert_eq!(has_column, 0, "the old column is gone");
     }
 
     #[test]
