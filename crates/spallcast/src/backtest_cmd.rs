@@ -232,6 +232,7 @@ pub fn run(args: &BacktestArgs) -> anyhow::Result<ExitCode> {
         let bearing = format!("{}/{}", state.machine, state.position);
         replays.extend(lives.iter().map(|l| replay(&bearing, l)));
     }
+    crate::refresh::print_warnings(&store);
     if args.json {
         let doc = serde_json::json!({
             "caution": crate::bearings_cmd::CAUTION,

@@ -103,6 +103,7 @@ pub fn run_bearings(args: &BearingsArgs) -> anyhow::Result<ExitCode> {
     } else {
         assess_store(&mut store, &StageOptions::default())?
     };
+    crate::refresh::print_warnings(&store);
     if args.json {
         let doc = serde_json::json!({ "caution": CAUTION, "bearings": report.summaries });
         println!("{}", serde_json::to_string_pretty(&doc)?);
@@ -195,6 +196,7 @@ pub fn run_bearing(args: &BearingArgs) -> anyhow::Result<ExitCode> {
         .filter(|r| r.baseline)
         .map(|r| r.id)
         .collect();
+    crate::refresh::print_warnings(&store);
     if args.json {
         let doc = serde_json::json!({
             "caution": CAUTION,

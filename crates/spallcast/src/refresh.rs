@@ -51,3 +51,10 @@ pub fn refresh(store: &mut Store, quiet: bool) -> anyhow::Result<CompleteReport>
     }
     Ok(report)
 }
+
+/// Prints, on standard error, the stored rows the store had to leave out (each named).
+pub fn print_warnings(store: &Store) {
+    for w in store.take_warnings() {
+        eprintln!("spallcast: warning: {w} (in {})", store.path().display());
+    }
+}

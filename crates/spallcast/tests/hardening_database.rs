@@ -636,3 +636,48 @@ fn csv_cells_that_hide_a_formula_are_neutralised() {
         assert_eq!(neutralise(cell), cell);
     }
 }
+
+/// Issue 16 item 3, second half: one stored row with a timestamp this build cannot read (year 10000,
+/// as an older build could store) made `bearings` and every export fail. It is left out with a
+/// warning naming it, and the commands work (seen failing before the fix: "loading the lives of …:
+/// bad timestamp").
+#[test]
+fn one_bad_stored_row_is_left_out_with_a_warning_not_the_end_of_every_command() {
+    let tmp = tempfile::tempdir().unwrap();
+    let route = write_route(tmp.path(), "day-z", 4, 4096, 21, None);
+    let db = tmp.path().join("bad-row.db");
+    import_ok(&route, &db, &tmp.path().join("plant.toml"));
+    let bad_id: i64 = {
+        let conn = rusqlite::Connection::open(&db).unwrap();
+        let id = conn
+            .query_row("SELECT min(id) FROM reading", [], |r| r.get(0))
+            .unwrap();
+        conn.execute(
+            "UPDATE reading SET taken_at_utc = '+10000-01-01T11:59:59.000Z' WHERE id = ?1",
+            [id],
+        )
+        .unwrap();
+        id
+    };
+    let o = spallcast(&[os("bearings"), os("--db"), os(&db)]);
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(o.status.success(), "{err}");
+    assert!(
+        err.contains(&format!("warning: reading {bad_id} left out")),
+        "the row is named: {err}"
+    );
+    let out = tmp.path().join("plan.csv");
+    let o = spallcast(&[
+        os("plan"),
+        os("export"),
+        os("--db"),
+        os(&db),
+        os("--format"),
+        os("csv"),
+        os("--out"),
+        os(&out),
+    ]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let o = spallcast(&[os("bearing"), os("HC-M1/DE"), os("--db"), os(&db)]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+}

@@ -85,6 +85,23 @@ pub struct Store {
     path: PathBuf,
     /// Opened read-only (see [`Store::open_existing`]): nothing can be written.
     read_only: bool,
+    /// Stored rows a query had to leave out (a timestamp that does not parse, say), in words; see
+    /// [`Store::take_warnings`]. One bad row never makes every command fail.
+    skipped: std::cell::RefCell<std::collections::BTreeSet<String>>,
+}
+
+impl Store {
+    /// The rows left out by queries since the last call, each named, for the caller to show as
+    /// warnings.
+    pub fn take_warnings(&self) -> Vec<String> {
+        std::mem::take(&mut *self.skipped.borrow_mut())
+            .into_iter()
+            .collect()
+    }
+
+    pub(crate) fn skip_row(&self, what: String) {
+        self.skipped.borrow_mut().insert(what);
+    }
 }
 
 /// Current UTC time as stored text.

@@ -252,7 +252,16 @@ impl Store {
                 r.get::<_, Option<String>>(12)?,
                 r.get::<_, Option<i32>>(13)?,
             ) {
-                (Some(utc), Some(off)) => Some(crate::local_time(&utc, off)?),
+                (Some(utc), Some(off)) => match crate::local_time(&utc, off) {
+                    Ok(t) => Some(t),
+                    Err(e) => {
+                        self.skip_row(format!(
+                            "reading {} left out: {e}",
+                            last_reading_id.unwrap_or_default()
+                        ));
+                        None
+                    }
+                },
                 _ => None,
             };
             let latest_stage = r
@@ -295,17 +304,20 @@ impl Store {
                 ))
             })?
             .collect::<Result<Vec<_>, _>>()?;
-        rows.into_iter()
-            .map(|(reading_id, utc, off, point, dir, value)| {
-                Ok(TrendPoint {
+        let mut out = Vec::with_capacity(rows.len());
+        for (reading_id, utc, off, point, dir, value) in rows {
+            match crate::local_time(&utc, off) {
+                Ok(taken_at) => out.push(TrendPoint {
                     reading_id,
-                    taken_at: crate::local_time(&utc, off)?,
+                    taken_at,
                     point,
                     direction: Direction::parse(&dir).unwrap_or(Direction::H),
                     value,
-                })
-            })
-            .collect()
+                }),
+                Err(e) => self.skip_row(format!("reading {reading_id} left out: {e}")),
+            }
+        }
+        Ok(out)
     }
 
     /// The scalars (indicators) stored for one reading, by name.
@@ -379,7 +391,16 @@ impl Store {
         let raws = stmt
             .query_map([param], raw_meta)?
             .collect::<Result<Vec<_>, _>>()?;
-        raws.into_iter().map(finish_meta).collect()
+        let mut out = Vec::with_capacity(raws.len());
+        for raw in raws {
+            let id = raw.0.id;
+            match finish_meta(raw) {
+                Ok(meta) => out.push(meta),
+                // One bad stored row is left out and named, never the end of every command.
+                Err(e) => self.skip_row(format!("reading {id} left out: {e}")),
+            }
+        }
+        Ok(out)
     }
 
     /// Route days with their reading counts, newest first.

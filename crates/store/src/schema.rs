@@ -377,6 +377,7 @@ impl Store {
             conn,
             path: path.to_path_buf(),
             read_only: true,
+            skipped: std::cell::RefCell::default(),
         })
     }
 
@@ -430,6 +431,7 @@ impl Store {
             conn,
             path: path.to_path_buf(),
             read_only: false,
+            skipped: std::cell::RefCell::default(),
         };
         if version < target {
             store.migrate(target)?;

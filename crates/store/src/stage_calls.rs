@@ -62,11 +62,19 @@ impl Store {
         let mut out = Vec::new();
         while let Some(r) = rows.next()? {
             let taken: String = r.get(3)?;
+            let taken_at = match crate::parse_utc(&taken) {
+                Ok(t) => t,
+                Err(e) => {
+                    let id: i64 = r.get(4)?;
+                    self.skip_row(format!("stage call of reading {id} left out: {e}"));
+                    continue;
+                }
+            };
             out.push(PointCall {
                 position_id: r.get(0)?,
                 life_id: r.get(1)?,
                 point: r.get(2)?,
-                taken_at: crate::parse_utc(&taken)?,
+                taken_at,
                 call: stage_call_from_row((r.get(4)?, r.get(5)?, r.get(6)?, r.get(7)?, r.get(8)?))?,
             });
         }
