@@ -581,8 +581,20 @@ fn import_route_folder_in_background_then_show_summary() {
         Some("2026-05-14")
     );
     assert!(att.rejected.iter().any(|r| r.file == "missing.csv"));
+    // Issue 17 item 8: the NDE point, read on 14 Apr, was not collected on this route (its file was
+    // missing): listed under "Since last route".
+    assert_eq!(att.not_collected, vec!["TP-P1-NDE-H".to_owned()]);
     h.get_by_label("Close").click();
     h.run_steps(2);
+    h.get_by_label("Since last route").click();
+    h.run_steps(3);
+    assert!(
+        h.query_by_label("Not collected on the last route (1)")
+            .is_some()
+    );
+    h.state_mut()
+        .apply(spallcast_app::actions::Action::ShowView(View::Changes));
+    h.run_steps(1);
     assert!(h.state().import_summary().is_none());
 
     // Importing the same folder again adds nothing.
