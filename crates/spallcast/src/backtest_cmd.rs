@@ -14,7 +14,7 @@ use anyhow::bail;
 use chrono::{DateTime, Utc};
 use serde::Serialize;
 use spallcast_analysis::forecast::{rul_percent_error, rul_score};
-use spallcast_analysis::stage::StageOptions;
+use spallcast_analysis::stage::{StageOptions, median};
 use spallcast_model::units::unix_s_of_date;
 use spallcast_pipeline::assess::{LifeAssessment, assess_position, utc_from_s};
 
@@ -83,19 +83,6 @@ pub struct LifeReplay {
 
 fn utc(t_s: f64) -> Option<DateTime<Utc>> {
     utc_from_s(t_s)
-}
-
-fn median(mut v: Vec<f64>) -> Option<f64> {
-    if v.is_empty() {
-        return None;
-    }
-    v.sort_by(f64::total_cmp);
-    let n = v.len();
-    Some(if n % 2 == 1 {
-        v[n / 2]
-    } else {
-        0.5 * (v[n / 2 - 1] + v[n / 2])
-    })
 }
 
 /// Replays one assessed life.

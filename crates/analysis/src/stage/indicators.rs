@@ -199,7 +199,8 @@ pub struct Baseline {
     pub readings: usize,
 }
 
-fn median(mut v: Vec<f64>) -> Option<f64> {
+/// Median of the finite values (mean of the middle two for an even count); `None` when there are none.
+pub fn median(mut v: Vec<f64>) -> Option<f64> {
     v.retain(|x| x.is_finite());
     if v.is_empty() {
         return None;

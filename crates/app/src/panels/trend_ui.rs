@@ -137,22 +137,32 @@ pub fn db_series(
     out
 }
 
-/// The damage index of each reading's call, one segment per bearing life.
-pub fn damage_series(history: &BearingHistory, readings: &[&ReadingSummary]) -> Vec<Vec<[f64; 2]>> {
+/// `value` of each reading (those that have one), one segment per bearing life: a line is never
+/// joined across a replacement.
+pub fn life_segments(
+    history: &BearingHistory,
+    readings: &[&ReadingSummary],
+    value: impl Fn(&ReadingSummary) -> Option<f64>,
+) -> Vec<Vec<[f64; 2]>> {
     let mut out: Vec<Vec<[f64; 2]>> = Vec::new();
     let mut life_of_last = None;
     for r in readings {
-        let Some(d) = r.damage_db else { continue };
+        let Some(v) = value(r) else { continue };
         let life = history.life_start_for(r.taken_at.date_naive());
         if out.is_empty() || life_of_last != Some(life) {
             out.push(Vec::new());
             life_of_last = Some(life);
         }
         if let Some(seg) = out.last_mut() {
-            seg.push([day_of(r), d]);
+            seg.push([day_of(r), v]);
         }
     }
     out
+}
+
+/// The damage index of each reading's call, one segment per bearing life.
+pub fn damage_series(history: &BearingHistory, readings: &[&ReadingSummary]) -> Vec<Vec<[f64; 2]>> {
+    life_segments(history, readings, |r| r.damage_db)
 }
 
 /// The fixed colour of an indicator: by its place in [`INDICATORS`], so choosing another indicator
@@ -418,22 +428,7 @@ fn velocity_ui(
         ui.label("No overall velocity stored for this point.");
         return false;
     };
-    // One segment per bearing life: never joined across a replacement.
-    let mut segments: Vec<Vec<[f64; 2]>> = Vec::new();
-    let mut life_of_last = None;
-    for r in readings {
-        let Some(v) = r.scalars.get(*key).copied() else {
-            continue;
-        };
-        let life = history.life_start_for(r.taken_at.date_naive());
-        if segments.is_empty() || life_of_last != Some(life) {
-            segments.push(Vec::new());
-            life_of_last = Some(life);
-        }
-        if let Some(seg) = segments.last_mut() {
-            seg.push([day_of(r), v]);
-        }
-    }
+    let segments = life_segments(history, readings, |r| r.scalars.get(*key).copied());
     let group = Some(history.iso_group);
     let support = history.iso_support;
     let mut drawn = false;
