@@ -50,8 +50,8 @@ pub use bands::{BandEnergy, BandScale, BandSpec, band_energies, default_bands};
 pub use diagnose::rules as location_rules;
 pub use diagnose::{
     AccelUnit, BandChoice, DiagnoseOptions, Diagnosis, DisplayUnits, DisplayValues, Finding,
-    Indicators, LocationCall, StageIndicators, VelocityUnit, acceleration_spectrum, diagnose,
-    diagnose_with, envelope_spectrum, stage_indicators_flat, velocity_spectrum,
+    Indicators, LocationCall, MIN_SAMPLES, StageIndicators, VelocityUnit, acceleration_spectrum,
+    diagnose, diagnose_with, envelope_spectrum, stage_indicators_flat, velocity_spectrum,
 };
 pub use indicators::{MachineGroup, Support, Zone};
 pub use kinematics::{

@@ -58,7 +58,10 @@ use std::path::Path;
 
 pub use csv_waveform::read_csv_waveform;
 pub use error::{FormatError, Problem};
-pub use manifest::{MAX_MANIFEST_BYTES, MAX_RPM, ManifestRow, Units, read_manifest};
+pub use manifest::{
+    EARLIEST_TAKEN_AT, FUTURE_TOLERANCE_H, MAX_MANIFEST_BYTES, MAX_RPM, ManifestRow, Units,
+    read_manifest,
+};
 pub use uff58::read_uff58;
 pub use validate::{
     MAX_SAMPLE_RATE_HZ, MIN_SAMPLE_RATE_HZ, MIN_SAMPLES, clipping_fraction, validate,

@@ -4,7 +4,7 @@
 //! time order per measurement point, assessed with [`spallcast_analysis::stage::assess_life`], and
 //! forecast with [`spallcast_analysis::forecast::forecast_life`]. [`assess_store`] writes the call of
 //! every reading into the store's stage-call table as a typed
-//! [`StageRecord`](spallcast_analysis::record::StageRecord) (the call, and the forecast as it stood at
+//! [`StageRecord`] (the call, and the forecast as it stood at
 //! that reading), serialised with serde. A position's summary is its most urgent point in the current life.
 //!
 //! Calls and forecasts are advisory; a person decides, and isolates and locks out the machine before
