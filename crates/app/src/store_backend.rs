@@ -434,7 +434,7 @@ impl PlantSource for StoreSource {
         }
         readings.sort_by_key(|r| r.taken_at);
         // The bearing's one call: the governing point's latest call on the current life.
-        let call = bearing_calls(&self.store)?.remove(&info.id);
+        let call = spallcast_plan::source::bearing_call(&self.store, info.id)?;
         let stage_call = call.as_ref().map(|c| StageCallView {
             stage: c.stage,
             point: c.point.clone(),

@@ -110,9 +110,12 @@ impl std::fmt::Display for SlotWarning {
 /// True when `outage` can take the replacement: it takes the machine down, is not over by `today`, and
 /// starts on or before the bearing's `replace_by` date.
 pub fn fits(need: &BearingNeed, outage: &Outage, today: NaiveDate) -> bool {
-    outage.takes_down(&need.life.machine_id, &need.life.area)
-        && outage.end >= today
-        && outage.start <= need.forecast.replace_by
+    can_take(need, outage, today) && outage.start <= need.forecast.replace_by
+}
+
+/// The outage takes the bearing's machine down and is not over by `today` (whatever its timing).
+fn can_take(need: &BearingNeed, outage: &Outage, today: NaiveDate) -> bool {
+    outage.takes_down(&need.life.machine_id, &need.life.area) && outage.end >= today
 }
 
 /// The suggested outage for a bearing: the LAST outage that fits (see [`fits`]), so the bearing runs as
@@ -144,7 +147,7 @@ pub fn next_down<'a>(
 ) -> Option<&'a Outage> {
     outages
         .iter()
-        .filter(|o| o.takes_down(&need.life.machine_id, &need.life.area) && o.end >= today)
+        .filter(|o| can_take(need, o, today))
         .min_by(|a, b| {
             a.start
                 .cmp(&b.start)

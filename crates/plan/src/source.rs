@@ -257,9 +257,18 @@ pub struct BearingCall {
 /// Every bearing's call, by position id. A bearing whose newest life has no stored call (one just
 /// replaced, or never read) is absent.
 pub fn bearing_calls(store: &Store) -> Result<BTreeMap<i64, BearingCall>> {
+    Ok(governing_calls(store.latest_point_calls()?))
+}
+
+/// One bearing's call ([`bearing_calls`] for one position), reading only that bearing's calls.
+pub fn bearing_call(store: &Store, position_id: i64) -> Result<Option<BearingCall>> {
+    Ok(governing_calls(store.latest_point_calls_of(position_id)?).remove(&position_id))
+}
+
+fn governing_calls(point_calls: Vec<spallcast_store::PointCall>) -> BTreeMap<i64, BearingCall> {
     let mut by_position: BTreeMap<i64, Vec<(spallcast_store::PointCall, Option<StageRecord>)>> =
         BTreeMap::new();
-    for pc in store.latest_point_calls()? {
+    for pc in point_calls {
         let record = serde_json::from_value::<StageRecord>(pc.call.evidence.clone())
             .ok()
             .filter(StageRecord::is_current);
@@ -292,7 +301,7 @@ pub fn bearing_calls(store: &Store) -> Result<BTreeMap<i64, BearingCall>> {
             );
         }
     }
-    Ok(out)
+    out
 }
 
 /// Forecasts of current lives, read from each bearing's call ([`bearing_calls`]): the call must be

@@ -81,10 +81,6 @@ pub struct LifeReplay {
     pub points: Vec<PointReplay>,
 }
 
-fn utc(t_s: f64) -> Option<DateTime<Utc>> {
-    utc_from_s(t_s)
-}
-
 /// Replays one assessed life.
 pub fn replay(bearing: &str, life: &LifeAssessment) -> LifeReplay {
     let replaced_s = life.life.removed.map(unix_s_of_date);
@@ -110,8 +106,8 @@ pub fn replay(bearing: &str, life: &LifeAssessment) -> LifeReplay {
                     ReplayRow {
                         taken_at: *t,
                         stage: call.stage,
-                        replace_by: rb.and_then(|p| utc(p.t_s)),
-                        end_of_life: eol.and_then(|p| utc(p.t_s)),
+                        replace_by: rb.and_then(|p| utc_from_s(p.t_s)),
+                        end_of_life: eol.and_then(|p| utc_from_s(p.t_s)),
                         replace_by_error_days: replaced_s
                             .zip(rb)
                             .map(|(end, p)| (p.t_s - end) / DAY_S),

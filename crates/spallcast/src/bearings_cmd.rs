@@ -7,7 +7,7 @@ use std::fmt::Write as _;
 use std::path::PathBuf;
 use std::process::ExitCode;
 
-use anyhow::{Context, bail};
+use anyhow::Context;
 use chrono::{DateTime, Utc};
 use spallcast_analysis::forecast::{Backtest, Projection};
 use spallcast_analysis::stage::StageOptions;
@@ -155,34 +155,47 @@ pub fn bearings_table(rows: &[BearingSummary]) -> String {
     out
 }
 
-/// Finds the bearing `wanted` names (`MACHINE/POSITION`, its number, or a point id on it) and assesses
-/// its lives.
+/// The bearing `wanted` names: `MACHINE/POSITION`, its number, or the id of one of its points (from
+/// the plant tree, so a point names its bearing before it has readings). No assessment is run.
+pub(crate) fn resolve_bearing(
+    store: &Store,
+    db: &std::path::Path,
+    wanted: &str,
+) -> anyhow::Result<spallcast_store::BearingState> {
+    let wanted = wanted.trim();
+    let tree = store.plant_tree().context("reading the plant tree")?;
+    let by_point = tree
+        .areas
+        .iter()
+        .flat_map(|a| a.machines.iter())
+        .flat_map(|m| m.bearings.iter())
+        .find(|b| b.points.iter().any(|p| p.tag.eq_ignore_ascii_case(wanted)))
+        .map(|b| b.position_id);
+    let states = store.latest_states().context("listing bearing positions")?;
+    states
+        .into_iter()
+        .find(|s| {
+            format!("{}/{}", s.machine, s.position).eq_ignore_ascii_case(wanted)
+                || s.position_id.to_string() == wanted
+                || by_point == Some(s.position_id)
+        })
+        .with_context(|| {
+            format!(
+                "no bearing {wanted:?} in {}: give MACHINE/POSITION, a point id or the bearing number",
+                db.display()
+            )
+        })
+}
+
+/// The bearing `wanted` names (see [`resolve_bearing`]) with its assessed lives.
 pub(crate) fn find_bearing(
     store: &Store,
     db: &std::path::Path,
     wanted: &str,
 ) -> anyhow::Result<(spallcast_store::BearingState, Vec<LifeAssessment>)> {
-    let states = store.latest_states().context("listing bearing positions")?;
-    let wanted = wanted.trim();
-    for s in states {
-        let key = format!("{}/{}", s.machine, s.position);
-        if key.eq_ignore_ascii_case(wanted) || s.position_id.to_string() == wanted {
-            let lives = assess_position(store, &s, &StageOptions::default())?;
-            return Ok((s, lives));
-        }
-        let lives = assess_position(store, &s, &StageOptions::default())?;
-        if lives.iter().any(|l| {
-            l.points
-                .iter()
-                .any(|p| p.point.eq_ignore_ascii_case(wanted))
-        }) {
-            return Ok((s, lives));
-        }
-    }
-    bail!(
-        "no bearing {wanted:?} in {}: give MACHINE/POSITION, a point id or the bearing number",
-        db.display()
-    )
+    let state = resolve_bearing(store, db, wanted)?;
+    let lives = assess_position(store, &state, &StageOptions::default())?;
+    Ok((state, lives))
 }
 
 /// Runs `spallcast bearing`.

@@ -48,26 +48,10 @@ pub struct BaselineArgs {
     pub clear: bool,
 }
 
-/// The position id `wanted` names.
+/// The position id `wanted` names, and its `MACHINE/POSITION`.
 fn position_of(store: &Store, db: &std::path::Path, wanted: &str) -> anyhow::Result<(i64, String)> {
-    let wanted = wanted.trim();
-    for s in store.latest_states().context("listing bearing positions")? {
-        let key = format!("{}/{}", s.machine, s.position);
-        if key.eq_ignore_ascii_case(wanted) || s.position_id.to_string() == wanted {
-            return Ok((s.position_id, key));
-        }
-        if store
-            .readings_of_position(s.position_id)?
-            .iter()
-            .any(|r| r.point.eq_ignore_ascii_case(wanted))
-        {
-            return Ok((s.position_id, key));
-        }
-    }
-    bail!(
-        "no bearing {wanted:?} in {}: give MACHINE/POSITION, a point id or the bearing number",
-        db.display()
-    )
+    let s = crate::bearings_cmd::resolve_bearing(store, db, wanted)?;
+    Ok((s.position_id, format!("{}/{}", s.machine, s.position)))
 }
 
 fn open_for_writing(db: &std::path::Path) -> anyhow::Result<Store> {

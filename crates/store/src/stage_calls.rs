@@ -38,12 +38,21 @@ impl Store {
     /// position then point id. A position whose newest life has no called reading (a bearing just
     /// replaced) has no rows: its old life's calls are not its calls.
     pub fn latest_point_calls(&self) -> Result<Vec<PointCall>> {
+        self.latest_point_calls_where(None)
+    }
+
+    /// [`Store::latest_point_calls`] of one bearing position.
+    pub fn latest_point_calls_of(&self, position_id: i64) -> Result<Vec<PointCall>> {
+        self.latest_point_calls_where(Some(position_id))
+    }
+
+    fn latest_point_calls_where(&self, position: Option<i64>) -> Result<Vec<PointCall>> {
         let mut stmt = self.conn.prepare_cached(
             "WITH newest AS (
                  SELECT bp.id AS position_id,
                         (SELECT l.id FROM bearing_life l WHERE l.position_id = bp.id
                          ORDER BY l.installed DESC, l.id DESC LIMIT 1) AS life_id
-                 FROM bearing_position bp),
+                 FROM bearing_position bp WHERE ?1 IS NULL OR bp.id = ?1),
              ranked AS (
                  SELECT r.position_id, r.life_id, p.tag, r.id AS reading_id, r.taken_at_utc,
                         ROW_NUMBER() OVER (PARTITION BY r.life_id, r.point_id
@@ -58,7 +67,7 @@ impl Store {
              WHERE ranked.n = 1
              ORDER BY ranked.position_id, ranked.tag",
         )?;
-        let mut rows = stmt.query([])?;
+        let mut rows = stmt.query([position])?;
         let mut out = Vec::new();
         while let Some(r) = rows.next()? {
             let taken: String = r.get(3)?;
