@@ -37,4 +37,10 @@ pub enum Action {
     StepMonth(i32),
     /// Apply the planner's changes to the outage plan.
     ChangePlan(Vec<spallcast_plan::source::PlanChange>),
+    /// Ask where to save the plot on screen (dialog or typed path), then save it.
+    ExportPlotDialog,
+    /// Save the plot on screen as this PNG and an SVG beside it (see [`crate::plot_export`]).
+    ExportPlot(PathBuf),
+    /// Take back the last plan step.
+    UndoPlan(spallcast_plan::source::PlanUndo),
 }

@@ -97,6 +97,8 @@ pub struct SpallcastApp {
     pub(crate) path_prompt: Option<crate::path_prompt::PathPrompt>,
     /// A note or baseline change is on its way to the data thread.
     pub(crate) annotating: bool,
+    /// A plot being saved: its PNG waits for the window's screenshot.
+    pub(crate) pending_png: Option<crate::plot_export::PendingPng>,
     no_file_dialog: bool,
     persist: bool,
 }
@@ -153,6 +155,7 @@ impl SpallcastApp {
             last_change_check: std::time::Instant::now(),
             change_check_pending: false,
             screenshot: options.screenshot.map(ScreenshotPlan::new),
+            pending_png: None,
             path_prompt: None,
             annotating: false,
             no_file_dialog: options.no_file_dialog,
@@ -187,6 +190,11 @@ impl SpallcastApp {
     /// The selected bearing's history, once loaded.
     pub fn history(&self) -> Option<&BearingHistory> {
         self.history.as_ref()
+    }
+
+    /// The display units chosen (saved between runs).
+    pub fn units(&self) -> crate::settings::UnitPrefs {
+        self.state.units
     }
 
     /// The spectra view (selection, last frame's summary, cursor readout).
@@ -299,6 +307,34 @@ impl SpallcastApp {
                 }
             }
             Action::ImportFolder(folder) => self.start_import(&folder),
+            Action::ExportPlotDialog => {
+                let Some(name) = self.plot_file_name() else {
+                    self.set_status("no plot on screen to save".to_owned(), true);
+                    return;
+                };
+                let start = std::path::Path::new(&self.state.export_folder).join(&name);
+                let folder = self.state.export_folder.clone();
+                match crate::path_prompt::ask(
+                    PathPurpose::ExportPlot,
+                    &start.display().to_string(),
+                    self.no_file_dialog,
+                    || {
+                        let mut d = rfd::FileDialog::new()
+                            .set_title("Save the plot (a PNG and an SVG of this name)")
+                            .add_filter("PNG image", &["png"])
+                            .set_file_name(format!("{name}.png"));
+                        if !folder.is_empty() {
+                            d = d.set_directory(&folder);
+                        }
+                        d.save_file()
+                    },
+                ) {
+                    Asked::Chosen(path) => self.export_plot(&path),
+                    Asked::Prompt(prompt) => self.path_prompt = Some(prompt),
+                    Asked::Cancelled => {}
+                }
+            }
+            Action::ExportPlot(path) => self.export_plot(&path),
             Action::SelectBearing(key) => self.select_bearing(key),
             Action::OpenBearingView(key, view) => {
                 self.select_bearing(key);
@@ -340,6 +376,96 @@ impl SpallcastApp {
                     self.plan_loading = true;
                 }
             }
+            Action::UndoPlan(step) => {
+                if let Some(worker) = &self.worker
+                    && worker.send(Request::UndoPlan(self.today, Box::new(step)))
+                {
+                    self.plan_loading = true;
+                }
+            }
+        }
+    }
+
+    /// A file name for the plot on screen: bearing, point and spectrum kind.
+    fn plot_file_name(&self) -> Option<String> {
+        let (picture, _) = self.spectra.picture.as_ref()?;
+        let name: String = picture
+            .title
+            .chars()
+            .map(|c| {
+                if c.is_alphanumeric() || c == '-' {
+                    c
+                } else {
+                    '_'
+                }
+            })
+            .collect();
+        Some(
+            name.split('_')
+                .filter(|p| !p.is_empty())
+                .collect::<Vec<_>>()
+                .join("_"),
+        )
+    }
+
+    /// Writes the SVG of the plot on screen now and asks the window for the screenshot its PNG is cut
+    /// from (saved when it arrives, see [`crate::plot_export::PendingPng`]).
+    pub(crate) fn export_plot(&mut self, path: &std::path::Path) {
+        let Some((picture, rect)) = self.spectra.picture.clone() else {
+            self.set_status("no plot on screen to save".to_owned(), true);
+            return;
+        };
+        let (png, svg) = crate::plot_export::export_paths(path);
+        for p in [&png, &svg] {
+            if let Err(e) = crate::plot_export::check_target(p) {
+                self.set_status(format!("plot not saved: {e}"), true);
+                return;
+            }
+        }
+        let text = crate::plot_export::picture_svg(
+            &picture,
+            f64::from(rect.width().max(320.0)),
+            f64::from(rect.height().max(200.0)),
+        );
+        if let Err(e) = std::fs::write(&svg, text) {
+            self.set_status(
+                format!("plot not saved: cannot write {}: {e}", svg.display()),
+                true,
+            );
+            return;
+        }
+        if let Some(dir) = svg.parent() {
+            self.state.export_folder = dir.display().to_string();
+        }
+        let (tx, rx) = std::sync::mpsc::channel();
+        let ctx = self.ctx.clone();
+        self.ctx.request_screenshot(move |image| {
+            let _ = tx.send(image);
+            ctx.request_repaint();
+        });
+        self.pending_png = Some(crate::plot_export::PendingPng {
+            png,
+            svg,
+            rect,
+            pixels_per_point: self.ctx.pixels_per_point(),
+            image: rx,
+        });
+        self.set_status("saving the plot…".to_owned(), false);
+    }
+
+    /// Saves the PNG of a plot being saved once the window's screenshot is in.
+    fn poll_plot_export(&mut self) {
+        let Some(outcome) = self
+            .pending_png
+            .as_ref()
+            .and_then(crate::plot_export::PendingPng::poll)
+        else {
+            return;
+        };
+        self.pending_png = None;
+        match outcome {
+            Ok(line) => self.set_status(line, false),
+            Err(e) => self.set_status(format!("plot PNG not saved: {e}"), true),
         }
     }
 
@@ -511,6 +637,7 @@ impl eframe::App for SpallcastApp {
         for action in actions {
             self.apply(action);
         }
+        self.poll_plot_export();
         let busy = self.is_busy();
         let ctx = ui.ctx().clone();
         if let Some(plan) = &mut self.screenshot {

@@ -57,9 +57,11 @@ impl SpallcastApp {
         }
         self.import_summary_ui(ui.ctx(), &mut actions);
         if let Some(prompt) = &mut self.path_prompt {
+            let no_recent = Vec::new();
             let recent = match prompt.purpose {
                 crate::path_prompt::PathPurpose::OpenDatabase => &self.state.recent_databases,
                 crate::path_prompt::PathPurpose::ImportFolder => &self.state.recent_folders,
+                crate::path_prompt::PathPurpose::ExportPlot => &no_recent,
             };
             let (action, keep) = crate::path_prompt::prompt_ui(ui.ctx(), prompt, recent);
             actions.extend(action);
@@ -84,6 +86,7 @@ impl SpallcastApp {
             {
                 actions.push(Action::ImportDialog);
             }
+            units_menu(ui, &mut self.state.units);
             if let Some(path) = self.db_path() {
                 ui.label(
                     egui::RichText::new(path.display().to_string())
@@ -168,12 +171,15 @@ impl SpallcastApp {
                 );
             }
             View::OutagePlan => match &mut self.plan {
-                Some(panel) => {
-                    let changes = panel.draw(ui);
-                    if !changes.is_empty() {
+                Some(panel) => match panel.draw(ui) {
+                    Some(crate::plan_view::PlanAsk::Change(changes)) => {
                         actions.push(Action::ChangePlan(changes));
                     }
-                }
+                    Some(crate::plan_view::PlanAsk::Undo(step)) => {
+                        actions.push(Action::UndoPlan(step));
+                    }
+                    None => {}
+                },
                 None => {
                     ui.horizontal(|ui| {
                         ui.spinner();
@@ -195,11 +201,18 @@ impl SpallcastApp {
                 };
                 match view {
                     View::Spectra => {
+                        self.spectra.units = self.state.units;
                         self.spectra
                             .ui(ui, &mut self.state.spectra, history, &self.cache, actions);
                     }
-                    View::Trend => self.trend.ui(ui, &mut self.state.trend_indicators, history),
-                    _ => self.waveform.ui(ui, history, &self.cache, actions),
+                    View::Trend => {
+                        self.trend.units = self.state.units;
+                        self.trend.ui(ui, &mut self.state.trend_indicators, history);
+                    }
+                    _ => {
+                        self.waveform.units = self.state.units;
+                        self.waveform.ui(ui, history, &self.cache, actions);
+                    }
                 }
             }
         }
@@ -269,5 +282,22 @@ fn cautions_notice_ui(ctx: &egui::Context, actions: &mut Vec<Action>) {
         if ui.button(NOTICE_BUTTON).clicked() {
             actions.push(Action::AcknowledgeCautions);
         }
+    });
+}
+
+/// The display-unit choices (saved between runs). Only drawing and readouts change; the store and the
+/// exports keep g and mm/s.
+fn units_menu(ui: &mut egui::Ui, units: &mut crate::settings::UnitPrefs) {
+    use crate::settings::{AccelUnit, VelocityUnit};
+    ui.menu_button(crate::settings::UNITS_MENU, |ui| {
+        ui.label("Acceleration");
+        ui.radio_value(&mut units.accel, AccelUnit::G, "g");
+        ui.radio_value(&mut units.accel, AccelUnit::MetrePerS2, "m/s²");
+        ui.separator();
+        ui.label("Velocity");
+        ui.radio_value(&mut units.velocity, VelocityUnit::MmPerS, "mm/s");
+        ui.radio_value(&mut units.velocity, VelocityUnit::InPerS, "in/s");
+        ui.separator();
+        ui.weak("Display only: the database and the exports keep g and mm/s.");
     });
 }

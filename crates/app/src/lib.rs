@@ -26,6 +26,7 @@ pub mod palette;
 pub mod panels;
 pub mod path_prompt;
 pub mod plan_view;
+pub mod plot_export;
 mod replies;
 mod run;
 pub mod screenshot;

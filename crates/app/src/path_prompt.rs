@@ -31,6 +31,8 @@ pub enum PathPurpose {
     OpenDatabase,
     /// A route folder to import.
     ImportFolder,
+    /// A file to save the plot to (a PNG and an SVG of that name).
+    ExportPlot,
 }
 
 impl PathPurpose {
@@ -39,6 +41,7 @@ impl PathPurpose {
         match self {
             Self::OpenDatabase => "Open a database by path",
             Self::ImportFolder => "Import a route folder by path",
+            Self::ExportPlot => "Save the plot by path",
         }
     }
 
@@ -47,6 +50,7 @@ impl PathPurpose {
         match self {
             Self::OpenDatabase => "Open this database",
             Self::ImportFolder => "Import this folder",
+            Self::ExportPlot => "Save PNG and SVG",
         }
     }
 }
@@ -155,6 +159,13 @@ pub fn check(purpose: PathPurpose, text: &str) -> Result<PathBuf, String> {
             "{} has no route.csv (the route manifest)",
             path.display()
         )),
+        PathPurpose::ExportPlot => {
+            let (png, svg) = crate::plot_export::export_paths(&path);
+            crate::plot_export::check_target(&path)?;
+            crate::plot_export::check_target(&png)?;
+            crate::plot_export::check_target(&svg)?;
+            Ok(path)
+        }
         _ => Ok(path),
     }
 }
@@ -168,6 +179,8 @@ pub fn prompt_ui(
     let mut action = None;
     let mut keep = true;
     egui::Window::new(prompt.purpose.title())
+        .pivot(egui::Align2::CENTER_CENTER)
+        .default_pos(ctx.content_rect().center())
         .collapsible(false)
         .resizable(true)
         .default_width(520.0)
@@ -204,6 +217,7 @@ pub fn prompt_ui(
                             action = Some(match prompt.purpose {
                                 PathPurpose::OpenDatabase => Action::OpenDatabase(path),
                                 PathPurpose::ImportFolder => Action::ImportFolder(path),
+                                PathPurpose::ExportPlot => Action::ExportPlot(path),
                             });
                             keep = false;
                         }

@@ -93,21 +93,16 @@ impl SpallcastApp {
                     Ok(board) => match &mut self.plan {
                         Some(panel) => panel.board = board,
                         None => {
-                            self.plan = Some(PlanPanel {
-                                view: crate::plan_view::PlanView::default(),
-                                board,
-                                forecasts: None,
-                                message: None,
-                            });
+                            self.plan = Some(PlanPanel::from_board(board));
                         }
                     },
                     Err(e) => self.set_status(format!("could not read the outage plan: {e}"), true),
                 }
             }
-            Reply::PlanChanged(message, board) => {
+            Reply::PlanChanged(message, board, outcome) => {
                 self.plan_loading = false;
                 if let Some(panel) = &mut self.plan {
-                    panel.received(message, board);
+                    panel.received(message, board, outcome);
                 }
                 // A replacement marked done starts a new life: the tree, the header and the due
                 // list read the bearing's call again (the new bearing has none yet).

@@ -238,6 +238,103 @@ pub struct SpectraSettings {
     pub markers: MarkerSettings,
 }
 
+/// Acceleration display unit (the analysis works in g throughout).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default, Serialize, Deserialize)]
+pub enum AccelUnit {
+    /// Standard gravity.
+    #[default]
+    G,
+    /// Metres per second squared (1 g = 9.806 65 m/s²).
+    MetrePerS2,
+}
+
+/// Velocity display unit (the analysis works in mm/s throughout).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default, Serialize, Deserialize)]
+pub enum VelocityUnit {
+    /// Millimetres per second.
+    #[default]
+    MmPerS,
+    /// Inches per second (1 in = 25.4 mm).
+    InPerS,
+}
+
+/// The analyst's display units. Only what is drawn and read out changes; the store, the analysis and
+/// the exports keep g and mm/s.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default, Serialize, Deserialize)]
+#[serde(default)]
+pub struct UnitPrefs {
+    /// Acceleration (and the squared envelope, in its square).
+    pub accel: AccelUnit,
+    /// Velocity.
+    pub velocity: VelocityUnit,
+}
+
+impl UnitPrefs {
+    /// Display value per stored value of a spectrum kind (g peak, mm/s RMS, g²).
+    pub fn factor(self, kind: SpectrumKind) -> f64 {
+        match kind {
+            SpectrumKind::Acceleration => self.accel_factor(),
+            SpectrumKind::Velocity => self.velocity_factor(),
+            SpectrumKind::Envelope => self.accel_factor() * self.accel_factor(),
+        }
+    }
+
+    /// Display value per g.
+    pub fn accel_factor(self) -> f64 {
+        match self.accel {
+            AccelUnit::G => 1.0,
+            AccelUnit::MetrePerS2 => spallcast_model::units::STANDARD_GRAVITY_M_S2,
+        }
+    }
+
+    /// Display value per mm/s.
+    pub fn velocity_factor(self) -> f64 {
+        match self.velocity {
+            VelocityUnit::MmPerS => 1.0,
+            VelocityUnit::InPerS => 1.0 / spallcast_model::units::MM_PER_INCH,
+        }
+    }
+
+    /// Acceleration unit symbol.
+    pub fn accel_unit(self) -> &'static str {
+        match self.accel {
+            AccelUnit::G => "g",
+            AccelUnit::MetrePerS2 => "m/s²",
+        }
+    }
+
+    /// Velocity unit symbol.
+    pub fn velocity_unit(self) -> &'static str {
+        match self.velocity {
+            VelocityUnit::MmPerS => "mm/s",
+            VelocityUnit::InPerS => "in/s",
+        }
+    }
+
+    /// Amplitude unit of a spectrum kind.
+    pub fn unit(self, kind: SpectrumKind) -> &'static str {
+        match (kind, self.accel) {
+            (SpectrumKind::Acceleration, _) => self.accel_unit(),
+            (SpectrumKind::Velocity, _) => self.velocity_unit(),
+            (SpectrumKind::Envelope, AccelUnit::G) => "g²",
+            (SpectrumKind::Envelope, AccelUnit::MetrePerS2) => "(m/s²)²",
+        }
+    }
+
+    /// Amplitude axis title of a spectrum kind (acceleration with the peak detector, velocity with
+    /// the RMS detector, the squared envelope).
+    pub fn axis_title(self, kind: SpectrumKind) -> String {
+        match kind {
+            SpectrumKind::Acceleration => format!("acceleration, {} peak", self.unit(kind)),
+            SpectrumKind::Velocity => format!("velocity, {} RMS", self.unit(kind)),
+            SpectrumKind::Envelope => format!("squared envelope, {}", self.unit(kind)),
+        }
+    }
+}
+
+/// Label of the units menu in the top bar.
+pub const UNITS_MENU: &str = "Units";
+
 /// Everything saved between runs.
 #[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
 #[serde(default)]
@@ -254,6 +351,10 @@ pub struct PersistedState {
     pub recent_databases: Vec<String>,
     /// Route folders imported, newest first.
     pub recent_folders: Vec<String>,
+    /// Display units.
+    pub units: UnitPrefs,
+    /// Folder the last plot was saved in.
+    pub export_folder: String,
 }
 
 #[cfg(test)]
@@ -271,6 +372,27 @@ mod tests {
             assert!((axis.to_hz(v, shaft_hz) - 123.4).abs() < 1e-9, "{axis:?}");
         }
         assert!(FreqAxis::Orders.from_hz(10.0, 0.0).is_nan());
+    }
+
+    // 1 g is 9.806 65 m/s² (ISO 80000-3, standard gravity); 1 in/s is 25.4 mm/s (NIST SP 811, B.8).
+    #[test]
+    fn unit_factors_follow_the_definitions() {
+        let si = UnitPrefs {
+            accel: AccelUnit::MetrePerS2,
+            velocity: VelocityUnit::InPerS,
+        };
+        assert!((si.factor(SpectrumKind::Acceleration) - 9.806_65).abs() < 1e-12);
+        assert!((si.factor(SpectrumKind::Envelope) - 9.806_65 * 9.806_65).abs() < 1e-9);
+        assert!((si.factor(SpectrumKind::Velocity) * 25.4 - 1.0).abs() < 1e-12);
+        assert_eq!(
+            si.axis_title(SpectrumKind::Envelope),
+            "squared envelope, (m/s²)²"
+        );
+        let base = UnitPrefs::default();
+        for kind in SpectrumKind::ALL {
+            assert!((base.factor(kind) - 1.0).abs() < f64::EPSILON);
+            assert_eq!(base.axis_title(kind), kind.axis_title());
+        }
     }
 
     #[test]

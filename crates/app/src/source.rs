@@ -7,7 +7,9 @@ use std::path::Path;
 
 use chrono::NaiveDate;
 use spallcast_plan::PlanBoard;
-use spallcast_plan::source::PlanChange;
+use spallcast_plan::source::{PlanChange, PlanUndo};
+
+use crate::plan_view::StepOutcome;
 
 use crate::model::{
     Annotation, Attention, BearingHistory, BearingKey, ImportProgress, ImportSummary, PlantTree,
@@ -31,7 +33,13 @@ pub trait PlantSource: Send {
         &mut self,
         today: NaiveDate,
         changes: &[PlanChange],
-    ) -> (String, anyhow::Result<PlanBoard>);
+    ) -> (String, anyhow::Result<PlanBoard>, StepOutcome);
+    /// Takes back a plan step (see [`crate::plan_view::undo_step`]), then reads the plan again.
+    fn undo_plan(
+        &mut self,
+        today: NaiveDate,
+        step: &PlanUndo,
+    ) -> (String, anyhow::Result<PlanBoard>, StepOutcome);
     /// Whether another connection (a command-line import, a second window) changed the database since
     /// the last call.
     fn changed_elsewhere(&mut self) -> anyhow::Result<bool>;

@@ -508,10 +508,28 @@ impl PlantSource for StoreSource {
         &mut self,
         today: chrono::NaiveDate,
         changes: &[spallcast_plan::source::PlanChange],
-    ) -> (String, anyhow::Result<spallcast_plan::PlanBoard>) {
-        let (message, board) =
+    ) -> (
+        String,
+        anyhow::Result<spallcast_plan::PlanBoard>,
+        crate::plan_view::StepOutcome,
+    ) {
+        let (message, board, outcome) =
             crate::plan_view::apply_changes(&mut self.store, today, None, changes);
-        (message, board.map_err(anyhow::Error::from))
+        (message, board.map_err(anyhow::Error::from), outcome)
+    }
+
+    fn undo_plan(
+        &mut self,
+        today: chrono::NaiveDate,
+        step: &spallcast_plan::source::PlanUndo,
+    ) -> (
+        String,
+        anyhow::Result<spallcast_plan::PlanBoard>,
+        crate::plan_view::StepOutcome,
+    ) {
+        let (message, board, outcome) =
+            crate::plan_view::undo_step(&mut self.store, today, None, step);
+        (message, board.map_err(anyhow::Error::from), outcome)
     }
 
     fn annotate(&mut self, key: &BearingKey, change: &Annotation) -> anyhow::Result<String> {

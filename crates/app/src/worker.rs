@@ -12,7 +12,9 @@ use std::time::{Duration, Instant};
 use chrono::NaiveDate;
 use eframe::egui;
 use spallcast_plan::PlanBoard;
-use spallcast_plan::source::PlanChange;
+use spallcast_plan::source::{PlanChange, PlanUndo};
+
+use crate::plan_view::StepOutcome;
 
 use crate::model::{
     Annotation, Attention, BearingHistory, BearingKey, ImportProgress, ImportSummary, PlantTree,
@@ -35,6 +37,8 @@ pub enum Request {
     Plan(NaiveDate),
     /// Apply the planner's changes, then read the plan again.
     ChangePlan(NaiveDate, Vec<PlanChange>),
+    /// Take back the last plan step, then read the plan again.
+    UndoPlan(NaiveDate, Box<PlanUndo>),
     /// Has another process changed the database?
     CheckForChanges,
     /// Change the analyst's records on a bearing (a note, the baseline marks).
@@ -62,8 +66,9 @@ pub enum Reply {
     Plan(Result<PlanBoard, String>),
     /// A note or baseline change was stored (or refused), in words.
     Annotated(BearingKey, Result<String, String>),
-    /// The planner's changes were applied: what was done, in words, and the plan read again.
-    PlanChanged(String, Result<PlanBoard, String>),
+    /// The planner's changes were applied (or a step taken back): what was done, in words, the plan
+    /// read again, and what became of the undo list.
+    PlanChanged(String, Result<PlanBoard, String>, StepOutcome),
     /// Whether another process changed the database since the last check.
     ChangedElsewhere(bool),
 }
@@ -177,8 +182,12 @@ fn handle(backend: &dyn Backend, source: &mut dyn PlantSource, request: Request)
         }
         Request::Plan(today) => Reply::Plan(source.plan(today).map_err(text)),
         Request::ChangePlan(today, changes) => {
-            let (message, board) = source.change_plan(today, &changes);
-            Reply::PlanChanged(message, board.map_err(text))
+            let (message, board, outcome) = source.change_plan(today, &changes);
+            Reply::PlanChanged(message, board.map_err(text), outcome)
+        }
+        Request::UndoPlan(today, step) => {
+            let (message, board, outcome) = source.undo_plan(today, &step);
+            Reply::PlanChanged(message, board.map_err(text), outcome)
         }
         // A failed check is not worth a message: the next one tries again.
         Request::CheckForChanges => {

@@ -302,3 +302,62 @@ fn planned_rows_stay_in_their_column_at_1280_by_720() {
         }
     }
 }
+
+/// Issue 17 item 8: "Undo" (and Ctrl+Z) takes back the last plan step, "Mark done" included: the
+/// removed bearing's life is open again and planned in its outage; a second undo empties the plan.
+#[test]
+fn undo_takes_back_mark_done_then_the_plan_entry() {
+    let mut h = harness(fixture());
+    h.run();
+    assert!(
+        h.query_by_label(spallcast_app::plan_view::UNDO_LABEL)
+            .is_none(),
+        "nothing to undo yet"
+    );
+    let p1 = life_of(&h.state().store, "IN-P1");
+    let spring = outage_id(&h.state().store, "Spring intake shutdown");
+    h.get_by_label("Plan IN-P1 MNDE in Spring intake shutdown")
+        .click();
+    h.run();
+    h.get_by_label("Mark done…").click();
+    h.run();
+    h.get_by_label("Confirm replacement").click();
+    h.run();
+    assert_ne!(life_of(&h.state().store, "IN-P1"), p1);
+
+    h.get_by_label(spallcast_app::plan_view::UNDO_LABEL).click();
+    h.run();
+    assert_eq!(
+        life_of(&h.state().store, "IN-P1"),
+        p1,
+        "the old life is open again"
+    );
+    assert_eq!(
+        planned(&h.state().store),
+        vec![(p1, spring, PlanStatus::Planned)]
+    );
+    let msg = h.state().panel.message.clone().unwrap();
+    assert!(
+        msg.starts_with("undone: replacement of IN-P1 MNDE"),
+        "{msg}"
+    );
+    assert_eq!(
+        h.state().panel.board.tasks_in(spring).len(),
+        1,
+        "board read again"
+    );
+
+    // The keyboard shortcut takes back the planning step too.
+    h.key_press_modifiers(egui::Modifiers::COMMAND, egui::Key::Z);
+    h.run();
+    assert!(
+        planned(&h.state().store).is_empty(),
+        "{:?}",
+        planned(&h.state().store)
+    );
+    assert!(h.state().panel.undo.is_empty());
+    assert!(
+        h.query_by_label(spallcast_app::plan_view::UNDO_LABEL)
+            .is_none()
+    );
+}

@@ -822,3 +822,200 @@ fn bundled_font_draws_arrows_and_the_warning_sign() {
     out.textures_delta.clear();
     assert!(!plain.fonts_mut(|f| f.has_glyph(&egui::FontId::proportional(14.0), '\u{26a0}')));
 }
+
+/// Issue 17 item 8: display units. Choosing m/s² and in/s in the units menu redraws the spectra in
+/// those units: 1 g = 9.806 65 m/s² (ISO 80000-3, standard gravity), 1 in = 25.4 mm (NIST SP 811,
+/// appendix B); the choice is kept in the saved state.
+#[test]
+fn unit_preferences_redraw_the_spectra() {
+    use spallcast_app::settings::{AccelUnit, UNITS_MENU, VelocityUnit};
+    let fx = build_fixture();
+    let mut h = harness(&fx.db, true);
+    settle(&mut h);
+    h.get_by_label(BEARING_LABEL).click();
+    h.step();
+    settle(&mut h);
+    h.run_steps(3);
+    let g_top = h.state().spectra_panel().summary.y_top;
+    assert!(g_top > 0.0, "{g_top}");
+    assert_eq!(
+        h.state().spectra_panel().summary.y_title,
+        "acceleration, g peak"
+    );
+
+    h.get_by_label(UNITS_MENU).click();
+    h.run_steps(2);
+    h.get_by_label("m/s²").click();
+    h.run_steps(3);
+    assert_eq!(h.state().units().accel, AccelUnit::MetrePerS2);
+    let si_top = h.state().spectra_panel().summary.y_top;
+    assert!(
+        (si_top / g_top - 9.806_65).abs() < 1e-3,
+        "{si_top} m/s² for {g_top} g"
+    );
+    assert_eq!(
+        h.state().spectra_panel().summary.y_title,
+        "acceleration, m/s² peak"
+    );
+
+    h.key_press(egui::Key::Escape);
+    h.get_by_label("Velocity").click();
+    h.run_steps(3);
+    let mm_top = h.state().spectra_panel().summary.y_top;
+    h.get_by_label(UNITS_MENU).click();
+    h.run_steps(2);
+    h.get_by_label("in/s").click();
+    h.run_steps(3);
+    assert_eq!(h.state().units().velocity, VelocityUnit::InPerS);
+    let in_top = h.state().spectra_panel().summary.y_top;
+    assert!(
+        (in_top * 25.4 / mm_top - 1.0).abs() < 1e-4,
+        "{in_top} in/s for {mm_top} mm/s"
+    );
+    assert_eq!(
+        h.state().spectra_panel().summary.y_title,
+        "velocity, in/s RMS"
+    );
+}
+
+/// Completes the screenshot the app asked for in the last frame with `image` (the test harness has no
+/// renderer); returns whether one was asked for.
+fn answer_screenshot(
+    h: &mut egui_kittest::Harness<'static, spallcast_app::SpallcastApp>,
+    image: &egui::ColorImage,
+) -> bool {
+    let requests: Vec<egui::ScreenshotCallback> = h
+        .output()
+        .viewport_output
+        .values()
+        .flat_map(|v| v.commands.iter())
+        .filter_map(|c| match c {
+            egui::ViewportCommand::Screenshot(cb) => Some(cb.clone()),
+            _ => None,
+        })
+        .collect();
+    let asked = !requests.is_empty();
+    for cb in requests {
+        cb.complete(std::sync::Arc::new(image.clone()));
+    }
+    asked
+}
+
+/// Issue 17 item 8: "Save plot" writes the plot on screen as a PNG (the window's pixels inside the
+/// plot's rectangle) and an SVG drawn again from the same curves, markers and titles; a target that
+/// is an `SQLite` database is refused (issue 16 item 1's guard, for this file too).
+#[test]
+fn save_plot_writes_a_png_of_the_plot_and_a_valid_svg() {
+    use spallcast_app::plot_export::EXPORT_BUTTON;
+    let fx = build_fixture();
+    let out = tempfile::tempdir().unwrap();
+    let mut h = harness(&fx.db, true);
+    settle(&mut h);
+    h.get_by_label(BEARING_LABEL).click();
+    h.step();
+    settle(&mut h);
+    h.run_steps(3);
+
+    // Refused: the plant database itself as the target.
+    assert!(
+        h.state().spectra_panel().picture.is_some(),
+        "a plot is on screen"
+    );
+    h.get_by_label(EXPORT_BUTTON).click();
+    h.run_steps(3);
+    assert!(
+        h.query_by_label(PATH_FIELD_LABEL).is_some(),
+        "no dialog here, so a typed path is asked for; status {:?}",
+        h.state().status().map(|s| s.text.clone())
+    );
+    retype(&mut h, &fx.db.display().to_string());
+    h.get_by_label("Save PNG and SVG").click();
+    h.run_steps(2);
+    assert!(
+        h.query_by_label_contains("is an SQLite database").is_some(),
+        "the prompt says why"
+    );
+    let base = out.path().join("pump de");
+    retype(&mut h, &base.display().to_string());
+    h.get_by_label("Save PNG and SVG").click();
+    h.step();
+    // A screenshot of the whole window, each pixel coloured by its position, so the crop is checked.
+    let ppp = h.ctx.pixels_per_point();
+    let size = h.ctx.content_rect().size() * ppp;
+    let (w, hgt) = (size.x.round() as usize, size.y.round() as usize);
+    let pixels = (0..w * hgt)
+        .map(|i| egui::Color32::from_rgb((i % w % 256) as u8, (i / w % 256) as u8, 7))
+        .collect();
+    let image = egui::ColorImage::new([w, hgt], pixels);
+    assert!(
+        answer_screenshot(&mut h, &image),
+        "the window asked for its screenshot"
+    );
+    h.run_steps(3);
+
+    let status = h
+        .state()
+        .status()
+        .map(|s| s.text.clone())
+        .unwrap_or_default();
+    assert!(status.starts_with("saved the plot to"), "{status}");
+    let (_, rect) = h.state().spectra_panel().picture.clone().unwrap();
+    let png = out.path().join("pump de.png");
+    let decoder = png::Decoder::new(std::io::BufReader::new(std::fs::File::open(&png).unwrap()));
+    let mut reader = decoder.read_info().unwrap();
+    let mut buf = vec![0; reader.output_buffer_size().unwrap()];
+    let info = reader.next_frame(&mut buf).unwrap();
+    let x0 = (rect.min.x * ppp).round() as usize;
+    let y0 = (rect.min.y * ppp).round() as usize;
+    assert_eq!(
+        (info.width as usize, info.height as usize),
+        (
+            (rect.max.x * ppp).round() as usize - x0,
+            (rect.max.y * ppp).round() as usize - y0
+        ),
+        "the PNG is the plot's rectangle"
+    );
+    assert_eq!(
+        &buf[0..3],
+        &[(x0 % 256) as u8, (y0 % 256) as u8, 7],
+        "its first pixel is the plot's top-left pixel of the window"
+    );
+
+    let svg = std::fs::read_to_string(out.path().join("pump de.svg")).unwrap();
+    let mut reader = quick_xml::Reader::from_str(&svg);
+    let (mut polylines, mut depth) = (0, 0_i32);
+    loop {
+        match reader.read_event() {
+            Ok(quick_xml::events::Event::Start(e)) => {
+                depth += 1;
+                if e.name().as_ref() == b"polyline" {
+                    polylines += 1;
+                }
+            }
+            Ok(quick_xml::events::Event::End(_)) => depth -= 1,
+            Ok(quick_xml::events::Event::Eof) => break,
+            Ok(_) => {}
+            Err(e) => panic!("the SVG is not well-formed XML: {e}"),
+        }
+    }
+    assert_eq!(depth, 0, "every element closed");
+    let drawn = h.state().spectra_panel().summary.drawn.len();
+    assert!(drawn > 0);
+    assert_eq!(polylines, drawn, "one curve per month drawn");
+    assert!(svg.contains(&h.state().spectra_panel().summary.y_title));
+    let picture = &h.state().spectra_panel().picture.as_ref().unwrap().0;
+    let (lo, hi) = picture.x_range;
+    let shown: Vec<&String> = picture
+        .markers
+        .iter()
+        .filter(|(_, x)| (lo..=hi).contains(x))
+        .map(|(l, _)| l)
+        .collect();
+    assert!(!shown.is_empty(), "the plot opens on its markers");
+    for label in shown {
+        assert!(
+            svg.contains(&format!(">{label}</text>")),
+            "marker {label} in the SVG"
+        );
+    }
+}

@@ -6,6 +6,10 @@
 /// Standard gravity, m/s² (CGPM 1901; ISO 80000-3). One g of acceleration.
 pub const STANDARD_GRAVITY_M_S2: f64 = 9.806_65;
 
+/// Millimetres per inch: exactly 25.4 by the international yard and pound agreement of 1959 (NIST SP 811,
+/// appendix B).
+pub const MM_PER_INCH: f64 = 25.4;
+
 /// Shaft speed in r/min to Hz.
 pub fn rpm_to_hz(rpm: f64) -> f64 {
     rpm / 60.0

@@ -13,7 +13,7 @@ use spallcast_analysis::spectrum::{Detector, Quantity, SpectrumEngine, SpectrumU
 use spallcast_analysis::stage::keys;
 use spallcast_analysis::window::Window;
 use spallcast_model::units::date_of_unix_s;
-use spallcast_store::{BearingState, OutageInput, Store};
+use spallcast_store::{BearingState, OutageInput, PlanSnapshot, Store};
 
 use crate::board::PlanBoard;
 use crate::error::{PlanError, Result};
@@ -185,6 +185,54 @@ pub fn apply_change(store: &mut Store, change: &PlanChange) -> Result<String> {
             format!("deleted outage {name}")
         }
     })
+}
+
+/// A step the planner can take back: what it did, in words, and the planning tables before and after
+/// it. Made by [`apply_changes_undoable`]; taken back by [`undo`].
+#[derive(Debug, Clone, PartialEq)]
+pub struct PlanUndo {
+    /// What the step did (the status lines of the changes that were applied).
+    pub what: String,
+    before: PlanSnapshot,
+    after: PlanSnapshot,
+}
+
+/// Applies `changes` in order, each its own transaction, like [`apply_change`]. Returns, per change,
+/// its status line or its error, and the step that takes back every change that was applied (`None`
+/// when nothing changed, or when the plan could not be read to record it).
+pub fn apply_changes_undoable(
+    store: &mut Store,
+    changes: &[PlanChange],
+) -> (Vec<Result<String>>, Option<PlanUndo>) {
+    let before = store.plan_snapshot().ok();
+    let outcomes: Vec<Result<String>> = changes.iter().map(|c| apply_change(store, c)).collect();
+    let what = outcomes
+        .iter()
+        .filter_map(|o| o.as_ref().ok())
+        .filter_map(|line| line.lines().next())
+        .collect::<Vec<_>>()
+        .join("; ");
+    let undo = match (before, store.plan_snapshot().ok()) {
+        (Some(before), Some(after)) if before != after => Some(PlanUndo {
+            what,
+            before,
+            after,
+        }),
+        _ => None,
+    };
+    (outcomes, undo)
+}
+
+/// Takes back a step made by [`apply_changes_undoable`]: outages, plan entries and bearing lives return
+/// to what they were before it (a replacement marked done reopens the removed bearing's life, and its
+/// readings go back to it). Returns a status line.
+///
+/// # Errors
+/// When the plan has changed since the step (another change here, or another program): nothing is
+/// undone then; a store error.
+pub fn undo(store: &mut Store, step: &PlanUndo) -> Result<String> {
+    store.restore_plan(&step.before, &step.after)?;
+    Ok(format!("undone: {}", step.what))
 }
 
 /// Bearing details by position id (bearing type from the plant tree).

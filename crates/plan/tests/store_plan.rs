@@ -271,3 +271,117 @@ fn export_database_writes_each_format_from_the_store() {
     assert!(!dir.path().join("x.csv").exists());
     assert!(!missing.exists(), "the export must not create a database");
 }
+
+/// Issue 17 item 8: the planner's steps can be taken back, last first, including "mark done" (the
+/// removed bearing's life is reopened) and an outage deleted with its plan; taking back a step the plan
+/// has moved on from is refused and changes nothing.
+#[test]
+fn plan_steps_are_undone_last_first_and_a_stale_undo_is_refused() {
+    use spallcast_plan::source::{apply_changes_undoable, undo};
+    let dir = tempfile::tempdir().unwrap();
+    let mut store = plant_store(&dir.path().join("plant.db"));
+    let p1 = current_lives(&store)
+        .unwrap()
+        .into_iter()
+        .find(|l| l.machine_id == "IN-P1")
+        .unwrap();
+    let fc = forecasts(&[(p1.life_id, "2027-04-20", "2027-06-01")]);
+    let today = d("2026-12-01");
+    let board = load_board_with(&store, today, &fc).unwrap();
+    let spring = board
+        .outages
+        .iter()
+        .find(|o| o.name == "Spring intake shutdown")
+        .unwrap()
+        .id;
+    let start = store.plan_snapshot().unwrap();
+
+    let (out, plan_step) = apply_changes_undoable(
+        &mut store,
+        &[PlanChange::Assign {
+            life_id: p1.life_id,
+            outage_id: spring,
+        }],
+    );
+    assert!(out[0].is_ok(), "{out:?}");
+    let plan_step = plan_step.expect("a change was made, so it can be undone");
+    assert!(plan_step.what.contains("IN-P1"), "{}", plan_step.what);
+    let entry_id = load_board_with(&store, today, &fc)
+        .unwrap()
+        .tasks_in(spring)[0]
+        .id;
+    let (out, done_step) = apply_changes_undoable(
+        &mut store,
+        &[PlanChange::MarkDone {
+            entry_id,
+            replaced_on: d("2027-03-09"),
+            found: "outer race spall".into(),
+        }],
+    );
+    assert!(out[0].is_ok(), "{out:?}");
+    let done_step = done_step.unwrap();
+    assert_ne!(
+        current_lives(&store)
+            .unwrap()
+            .iter()
+            .find(|l| l.machine_id == "IN-P1")
+            .unwrap()
+            .life_id,
+        p1.life_id
+    );
+
+    // The older step first: refused, as the plan has moved on since; nothing changes.
+    let before_refusal = store.plan_snapshot().unwrap();
+    let err = undo(&mut store, &plan_step).unwrap_err().to_string();
+    assert!(err.contains("changed since"), "{err}");
+    assert_eq!(store.plan_snapshot().unwrap(), before_refusal);
+
+    // Last first: "mark done" taken back reopens the old life, planned in the spring outage again.
+    let msg = undo(&mut store, &done_step).unwrap();
+    assert!(msg.starts_with("undone: replacement of IN-P1"), "{msg}");
+    let reopened = current_lives(&store)
+        .unwrap()
+        .into_iter()
+        .find(|l| l.machine_id == "IN-P1")
+        .unwrap();
+    assert_eq!(reopened.life_id, p1.life_id);
+    assert_eq!(reopened.installed, p1.installed);
+    let board = load_board_with(&store, today, &fc).unwrap();
+    let tasks = board.tasks_in(spring);
+    assert_eq!(tasks.len(), 1);
+    assert_eq!(tasks[0].status, PlanStatus::Planned);
+    undo(&mut store, &plan_step).unwrap();
+    assert_eq!(store.plan_snapshot().unwrap(), start, "back to the start");
+    assert_eq!(
+        load_board_with(&store, today, &fc)
+            .unwrap()
+            .open_needs()
+            .len(),
+        1
+    );
+
+    // An outage deleted with its plan comes back with the same id and its planned entry.
+    apply_change(
+        &mut store,
+        &PlanChange::Assign {
+            life_id: p1.life_id,
+            outage_id: spring,
+        },
+    )
+    .unwrap();
+    let planned = store.plan_snapshot().unwrap();
+    let (out, delete_step) =
+        apply_changes_undoable(&mut store, &[PlanChange::DeleteOutage { id: spring }]);
+    assert!(out[0].is_ok(), "{out:?}");
+    assert!(
+        load_board_with(&store, today, &fc)
+            .unwrap()
+            .outage(spring)
+            .is_none()
+    );
+    undo(&mut store, &delete_step.unwrap()).unwrap();
+    assert_eq!(store.plan_snapshot().unwrap(), planned);
+    let board = load_board_with(&store, today, &fc).unwrap();
+    assert_eq!(board.tasks_in(spring).len(), 1);
+    assert_eq!(store.integrity_check().unwrap(), vec!["ok".to_owned()]);
+}

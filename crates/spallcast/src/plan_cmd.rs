@@ -131,7 +131,7 @@ pub fn refuse_to_overwrite_a_database(
             );
         }
     }
-    if !overwrite && is_sqlite_file(out) {
+    if !overwrite && spallcast_store::is_sqlite_file(out) {
         anyhow::bail!(
             "refusing to write the export over {}: it is an SQLite database; choose another --out, or pass \
              --overwrite to replace it",
@@ -139,13 +139,4 @@ pub fn refuse_to_overwrite_a_database(
         );
     }
     Ok(())
-}
-
-/// True when the file exists and starts with the `SQLite` header.
-fn is_sqlite_file(path: &Path) -> bool {
-    use std::io::Read as _;
-    let mut head = [0u8; 16];
-    std::fs::File::open(path)
-        .and_then(|mut f| f.read_exact(&mut head))
-        .is_ok_and(|()| &head == b"SQLite format 3\0")
 }

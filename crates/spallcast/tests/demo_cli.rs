@@ -186,6 +186,16 @@ fn every_view_and_export_gives_each_demo_bearing_the_same_call() {
     }
     assert_eq!(compared, cli.len(), "every bearing compared");
 
+    mark_done_then_undo(source.as_mut(), &cli, &db);
+}
+
+/// Marks the most urgent bearing's replacement done through the window's data layer (it leaves stage
+/// 4/3 everywhere), then takes it back (its call returns everywhere).
+fn mark_done_then_undo(
+    source: &mut dyn spallcast_app::source::PlantSource,
+    cli: &Answers,
+    db: &str,
+) {
     // Mark the most urgent bearing's replacement done: it leaves stage 4/3 everywhere.
     let (worst_key, _) = cli.iter().max_by_key(|(_, (s, _))| *s).expect("a bearing");
     let key = BearingKey {
@@ -201,14 +211,14 @@ fn every_view_and_export_gives_each_demo_bearing_the_same_call() {
         .expect("the worst bearing needs a slot");
     let life_id = need.life.life_id;
     let outage_id = board.outages.first().expect("the demo has outages").id;
-    let (msg, board) = source.change_plan(today, &[PlanChange::Assign { life_id, outage_id }]);
+    let (msg, board, _) = source.change_plan(today, &[PlanChange::Assign { life_id, outage_id }]);
     let board = board.unwrap_or_else(|e| panic!("{msg}: {e}"));
     let entry = board
         .entries
         .iter()
         .find(|e| e.life.life_id == life_id)
         .expect("the planned entry");
-    let (msg, board) = source.change_plan(
+    let (msg, board, outcome) = source.change_plan(
         today,
         &[PlanChange::MarkDone {
             entry_id: entry.id,
@@ -231,9 +241,43 @@ fn every_view_and_export_gives_each_demo_bearing_the_same_call() {
     let history = source.bearing(&key).expect("its history");
     assert!(history.stage_call.is_none(), "{:?}", history.stage_call);
     assert_eq!(
-        cli_answers(&db)[worst_key].0,
+        cli_answers(db)[worst_key].0,
         None,
         "the command line agrees after the replacement"
+    );
+
+    // Undo (issue 17 item 8): the removed bearing's life and its call come back everywhere.
+    let spallcast_app::plan_view::StepOutcome::Changed(Some(step)) = outcome else {
+        panic!("mark done gives a step to undo: {outcome:?}");
+    };
+    let (msg, board, outcome) = source.undo_plan(today, &step);
+    board.unwrap_or_else(|e| panic!("{msg}: {e}"));
+    assert_eq!(
+        outcome,
+        spallcast_app::plan_view::StepOutcome::Undone,
+        "{msg}"
+    );
+    let node_stage = source
+        .plant()
+        .expect("the plant tree after the undo")
+        .bearing(&key)
+        .and_then(|n| n.stage);
+    assert_eq!(
+        node_stage, cli[worst_key].0,
+        "the tree shows the old call again"
+    );
+    assert_eq!(
+        source
+            .bearing(&key)
+            .expect("its history")
+            .stage_call
+            .map(|c| c.stage),
+        cli[worst_key].0
+    );
+    assert_eq!(
+        cli_answers(db)[worst_key],
+        cli[worst_key],
+        "the command line agrees after the undo"
     );
 }
 

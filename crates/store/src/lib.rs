@@ -44,6 +44,7 @@ mod analyzer;
 mod annotations;
 mod error;
 mod import;
+mod plan_undo;
 mod planning;
 mod plant;
 mod plant_db;
@@ -62,6 +63,7 @@ pub use import::{
     CLIPPED_FRACTION_THRESHOLD, FindingChange, ImportSummary, NewReading, RejectedFile,
     create_and_import,
 };
+pub use plan_undo::PlanSnapshot;
 pub use planning::{Outage, OutageInput, PlanEntry, PlanStatus, StageCall};
 pub use plant::{
     AreaDef, BearingDef, BearingTypeDef, Direction, IsoSupport, Lubrication, MachineDef,
@@ -72,7 +74,7 @@ pub use queries::{
     AnalysisRecord, AreaNode, BearingNode, BearingState, ImportLogEntry, LifeInfo, LifeReadings,
     MachineNode, PlantTree, PointNode, ReadingMeta, RouteDay, TrendPoint, Waveform,
 };
-pub use schema::{SCHEMA_VERSION, copy_database, is_demo_database};
+pub use schema::{SCHEMA_VERSION, copy_database, is_demo_database, is_sqlite_file};
 pub use stage_calls::{NewStageCall, PointCall};
 
 /// How long a connection waits for another process's lock before failing with a "busy" error.

@@ -335,6 +335,12 @@ impl Store {
             [entry_id],
         )?;
         crate::plant_db::relink_readings(&tx, position_id)?;
+        // Readings after the replacement day now belong to the new life: their calls go stale.
+        tx.execute(
+            "INSERT INTO baseline_change (position_id, changed_at) VALUES (?1, ?2)
+             ON CONFLICT (position_id) DO UPDATE SET changed_at = excluded.changed_at",
+            params![position_id, crate::now_text()],
+        )?;
         tx.commit()?;
         Ok(new_life)
     }

@@ -523,6 +523,16 @@ impl Store {
     }
 }
 
+/// True when the file exists and starts with the `SQLite` header (`SQLite format 3` and a NUL, the
+/// file format's first 16 bytes): commands that write files refuse to write over one.
+pub fn is_sqlite_file(path: &Path) -> bool {
+    use std::io::Read as _;
+    let mut head = [0u8; 16];
+    std::fs::File::open(path)
+        .and_then(|mut f| f.read_exact(&mut head))
+        .is_ok_and(|()| &head == b"SQLite format 3\0")
+}
+
 /// True when `path` is a database that `spallcast demo` made (and may therefore replace).
 pub fn is_demo_database(path: &Path) -> bool {
     let Ok(store) = Store::open_read_only(path) else {

@@ -12,7 +12,7 @@ use crate::model::{
 };
 use crate::palette;
 use crate::settings::{
-    AmplitudeScale, FreqAxis, Layout, MarkerSettings, SpectraSettings, fault_label,
+    AmplitudeScale, FreqAxis, Layout, MarkerSettings, SpectraSettings, UnitPrefs, fault_label,
 };
 
 /// Smallest amplitude drawn on the log scale (keeps log10 finite for empty lines).
@@ -34,6 +34,10 @@ pub struct SpectraFrameSummary {
     pub plotted_points: usize,
     /// The x range (in the axis unit) the curves were drawn over.
     pub x_range: (f64, f64),
+    /// Amplitude axis title drawn.
+    pub y_title: String,
+    /// Highest amplitude drawn (display unit; log10 of it on the log scale; stacked: with offsets).
+    pub y_top: f64,
 }
 
 /// Cursor readout under the plot.
@@ -43,7 +47,7 @@ pub struct CursorReadout {
     pub freq_hz: f64,
     /// Order of the newest reading's shaft speed.
     pub order: f64,
-    /// Amplitude of the newest spectrum at that line.
+    /// Amplitude of the newest spectrum at that line, in the display unit.
     pub amplitude: Option<f32>,
     /// Nearest drawn marker and its distance in Hz.
     pub nearest_marker: Option<(String, f64)>,
@@ -73,6 +77,10 @@ pub struct SpectraPanel {
     full_x: f64,
     /// Highest fault or shaft marker (not sidebands) of the last frame, axis unit.
     markers_x_max: Option<f64>,
+    /// Display units (set by the app from the saved choice before each frame).
+    pub units: UnitPrefs,
+    /// What the plot drew in the last frame (for "Save plot"), and its rectangle on screen (points).
+    pub picture: Option<(crate::plot_export::PlotPicture, egui::Rect)>,
 }
 
 /// Upper frequency (Hz) a spectrum opens at: up to about 10x the highest fault repetition frequency
@@ -253,7 +261,7 @@ impl SpectraPanel {
         controls_ui(ui, settings);
         self.months_ui(ui, history);
         markers_ui(ui, &mut settings.markers, history.factors.is_some());
-        self.range_ui(ui, settings.axis);
+        self.range_ui(ui, settings.axis, actions);
         let missing: Vec<ReadingId> = self
             .selected
             .iter()
@@ -290,8 +298,8 @@ impl SpectraPanel {
     }
 
     /// Fmax field, "Fit to markers" and "Full span".
-    fn range_ui(&mut self, ui: &mut egui::Ui, axis: FreqAxis) {
-        ui.horizontal(|ui| {
+    fn range_ui(&mut self, ui: &mut egui::Ui, axis: FreqAxis, actions: &mut Vec<Action>) {
+        ui.horizontal_wrapped(|ui| {
             let full = self.full_x;
             let mut fmax = self.fmax;
             let unit = match axis {
@@ -327,6 +335,17 @@ impl SpectraPanel {
                 .clicked()
             {
                 self.pending_x = Some((0.0, full));
+            }
+            ui.separator();
+            if ui
+                .add_enabled(
+                    self.picture.is_some(),
+                    egui::Button::new(crate::plot_export::EXPORT_BUTTON),
+                )
+                .on_hover_text("The plot as shown (PNG) and drawn again as a vector image (SVG)")
+                .clicked()
+            {
+                actions.push(Action::ExportPlotDialog);
             }
         });
     }
@@ -398,7 +417,8 @@ impl SpectraPanel {
             .filter(|x| x.is_finite())
             .fold(0.0_f64, f64::max);
         let markers = shown_markers(settings, history, newest.map(|(_, s)| s), ref_shaft_hz);
-        let step = stack_step(settings, curves);
+        let factor = self.units.factor(kind);
+        let step = stack_step(settings, curves, factor);
         let scale = settings.scale;
         let count = curves.len();
         let mut plotted = 0;
@@ -411,7 +431,7 @@ impl SpectraPanel {
             .height(height)
             .legend(Legend::default().follow_insertion_order(true))
             .x_axis_label(axis.title())
-            .y_axis_label(kind.axis_title())
+            .y_axis_label(self.units.axis_title(kind))
             .auto_bounds(egui::Vec2b::new(false, true))
             .default_x_bounds(0.0, full_x)
             .allow_zoom(egui::Vec2b::new(true, false))
@@ -450,6 +470,25 @@ impl SpectraPanel {
                     axis.from_hz(hi, ref_shaft_hz),
                 )
             });
+        let mut picture = crate::plot_export::PlotPicture {
+            title: format!(
+                "{} {} {}, {}",
+                history.key.machine_id,
+                history.key.position,
+                self.point.as_deref().unwrap_or(""),
+                kind.label().to_lowercase()
+            ),
+            x_title: axis.title().to_owned(),
+            y_title: self.units.axis_title(kind),
+            log_y: scale == AmplitudeScale::Log,
+            stacked: settings.layout == Layout::Stacked,
+            markers: marker_xs
+                .iter()
+                .map(|(x, m)| (m.label.clone(), *x))
+                .collect(),
+            band: band_x.map(|(a, b)| (a, b, "demodulation band".to_owned())),
+            ..Default::default()
+        };
         let response = plot.show(ui, |pui| {
             if let Some((a, b)) = pending {
                 pui.set_plot_bounds_x(a..=b);
@@ -490,7 +529,7 @@ impl SpectraPanel {
                             series,
                             range,
                             columns,
-                            |v| f64::from(v) + offset,
+                            |v| f64::from(v) * factor + offset,
                             &mut buf,
                         );
                     }
@@ -499,7 +538,7 @@ impl SpectraPanel {
                             series,
                             range,
                             columns,
-                            |v| f64::from(v.max(LOG_FLOOR)).log10() + offset,
+                            |v| (f64::from(v.max(LOG_FLOOR)) * factor).log10() + offset,
                             &mut buf,
                         );
                     }
@@ -523,6 +562,11 @@ impl SpectraPanel {
                         .anchor(egui::Align2::LEFT_BOTTOM),
                     );
                 }
+                picture.series.push(crate::plot_export::PictureSeries {
+                    label: reading.legend_label(),
+                    colour,
+                    points: buf.clone(),
+                });
                 pui.line(
                     Line::new(reading.legend_label(), PlotPoints::new(buf))
                         .color(colour)
@@ -549,6 +593,10 @@ impl SpectraPanel {
             .collect();
         self.summary.plotted_points = plotted;
         self.summary.x_range = x_range;
+        self.summary.y_title = self.units.axis_title(kind);
+        self.summary.y_top = data_top;
+        picture.x_range = x_range;
+        self.picture = (!curves.is_empty()).then_some((picture, response.response.rect));
         if refit {
             self.fitted_for = Some(fit_key);
         }
@@ -573,7 +621,10 @@ impl SpectraPanel {
             Some(CursorReadout {
                 freq_hz,
                 order: freq_hz / ref_shaft_hz,
-                amplitude: spectra.get(kind).amplitude_at(freq_hz),
+                amplitude: spectra
+                    .get(kind)
+                    .amplitude_at(freq_hz)
+                    .map(|a| (f64::from(a) * factor) as f32),
                 nearest_marker: nearest,
             })
         });
@@ -585,7 +636,8 @@ impl SpectraPanel {
                      the frequency axis, drag to pan it, double-click for the full span."
                 .to_owned(),
             Some(c) => {
-                let amp = c.amplitude.map_or_else(|| "–".to_owned(), |a| format!("{a:.4} {}", kind.unit()));
+                let unit = self.units.unit(kind);
+                let amp = c.amplitude.map_or_else(|| "–".to_owned(), |a| format!("{a:.4} {unit}"));
                 let near = c
                     .nearest_marker
                     .as_ref()
@@ -658,7 +710,11 @@ fn draw_markers(
 }
 
 /// Vertical offset between stacked months: a little above the largest peak (linear) or two decades (log).
-fn stack_step(settings: &SpectraSettings, curves: &[(&ReadingSummary, SharedSpectra)]) -> f64 {
+fn stack_step(
+    settings: &SpectraSettings,
+    curves: &[(&ReadingSummary, SharedSpectra)],
+    factor: f64,
+) -> f64 {
     if settings.layout == Layout::Overlay {
         return 0.0;
     }
@@ -670,7 +726,7 @@ fn stack_step(settings: &SpectraSettings, curves: &[(&ReadingSummary, SharedSpec
                 .flat_map(|(_, s)| s.get(settings.kind).amplitude.iter().copied())
                 .filter(|v| v.is_finite())
                 .fold(0.0_f32, f32::max);
-            f64::from(peak) * 0.6
+            f64::from(peak) * factor * 0.6
         }
     }
 }

@@ -77,6 +77,8 @@ pub struct TrendPanel {
     pub point: Option<String>,
     /// What the last frame drew.
     pub summary: TrendFrameSummary,
+    /// Display units (set by the app from the saved choice before each frame).
+    pub units: crate::settings::UnitPrefs,
 }
 
 fn day_of(r: &ReadingSummary) -> f64 {
@@ -316,7 +318,7 @@ impl TrendPanel {
                     &mut summary,
                 );
             });
-        summary.zone_lines = velocity_ui(ui, history, &readings, link);
+        summary.zone_lines = velocity_ui(ui, history, &readings, link, self.units);
         self.summary = summary;
     }
 }
@@ -414,12 +416,14 @@ fn draw_events(
     }
 }
 
-/// Overall velocity in mm/s with the ISO 20816-3 zone boundaries of the machine's group and support.
+/// Overall velocity (mm/s or in/s) with the ISO 20816-3 zone boundaries of the machine's group and
+/// support.
 fn velocity_ui(
     ui: &mut egui::Ui,
     history: &BearingHistory,
     readings: &[&ReadingSummary],
     link: egui::Id,
+    units: crate::settings::UnitPrefs,
 ) -> bool {
     let Some(key) = VELOCITY_KEYS
         .iter()
@@ -428,7 +432,11 @@ fn velocity_ui(
         ui.label("No overall velocity stored for this point.");
         return false;
     };
-    let segments = life_segments(history, readings, |r| r.scalars.get(*key).copied());
+    let factor = units.velocity_factor();
+    let unit = units.velocity_unit();
+    let segments = life_segments(history, readings, |r| {
+        r.scalars.get(*key).map(|v| v * factor)
+    });
     let group = Some(history.iso_group);
     let support = history.iso_support;
     let mut drawn = false;
@@ -438,9 +446,9 @@ fn velocity_ui(
         .link_axis(link, egui::Vec2b::new(true, false))
         .y_axis_min_width(Y_AXIS_WIDTH)
         .x_axis_formatter(|m, _| date_label(m.value))
-        .y_axis_label("velocity RMS, mm/s")
+        .y_axis_label(format!("velocity RMS, {unit}"))
         .include_y(0.0)
-        .label_formatter(|hover| Some(hover_label(hover, "mm/s")))
+        .label_formatter(move |hover| Some(hover_label(hover, unit)))
         .show(ui, |pui| {
             for seg in segments {
                 pui.points(
@@ -461,7 +469,7 @@ fn velocity_ui(
                     ("ISO 20816-3 C/D", cd),
                 ] {
                     pui.hline(
-                        HLine::new(name, v)
+                        HLine::new(name, v * factor)
                             .color(palette::ZONE_LINE)
                             .style(LineStyle::dashed_loose()),
                     );

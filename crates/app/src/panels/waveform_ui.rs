@@ -17,6 +17,8 @@ pub struct WaveformPanel {
     pub reading: Option<ReadingId>,
     /// Points drawn in the last frame (after decimation).
     pub plotted_points: usize,
+    /// Display units (set by the app from the saved choice before each frame).
+    pub units: crate::settings::UnitPrefs,
 }
 
 impl WaveformPanel {
@@ -79,9 +81,10 @@ impl WaveformPanel {
             1000.0 / wave.shaft_hz
         ));
         let mut plotted = 0;
+        let factor = self.units.accel_factor();
         Plot::new(("waveform", id))
             .x_axis_label("time, s")
-            .y_axis_label("acceleration, g")
+            .y_axis_label(format!("acceleration, {}", self.units.accel_unit()))
             .auto_bounds(egui::Vec2b::new(false, true))
             .default_x_bounds(0.0, duration_s)
             .allow_boxed_zoom(true)
@@ -99,7 +102,7 @@ impl WaveformPanel {
                     dx: 1.0 / wave.sample_rate_hz,
                     y: &wave.samples_g,
                 };
-                decimate_minmax(series, range, columns, f64::from, &mut buf);
+                decimate_minmax(series, range, columns, |v| f64::from(v) * factor, &mut buf);
                 plotted = buf.len();
                 pui.line(
                     Line::new("waveform", PlotPoints::new(buf)).color(palette::curve_colour(1, 1)),

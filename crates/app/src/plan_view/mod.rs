@@ -3,10 +3,10 @@
 //! their replace-by date. A bearing is planned by dragging it onto an outage or by accepting the
 //! suggested outage; warnings are shown in words. Outages are added and edited in a small form.
 //!
-//! [`PlanView`] only draws a [`PlanBoard`] and returns [`PlanChange`]s; [`PlanPanel`] owns a board,
-//! applies the changes to the store with [`spallcast_plan::source::apply_change`] and reloads. Each change
-//! is one small transaction, so it runs on the UI thread; loading the board is a handful of indexed
-//! queries.
+//! [`PlanView`] only draws a [`PlanBoard`] and returns [`PlanChange`]s; [`PlanPanel`] owns a board and
+//! the steps that can be taken back, applies the changes to the store with
+//! [`spallcast_plan::source::apply_changes_undoable`] and reloads. Each change is one small
+//! transaction; loading the board is a handful of indexed queries.
 
 mod cards_ui;
 mod outage_editor;
@@ -15,7 +15,9 @@ use std::collections::BTreeMap;
 
 use chrono::NaiveDate;
 use eframe::egui;
-use spallcast_plan::source::{PlanChange, apply_change, load_board, load_board_with};
+use spallcast_plan::source::{
+    PlanChange, PlanUndo, apply_changes_undoable, load_board, load_board_with, undo,
+};
 use spallcast_plan::{Forecast, PlanBoard};
 use spallcast_store::Store;
 
@@ -146,6 +148,23 @@ pub struct PlanPanel {
     pub forecasts: Option<BTreeMap<i64, Forecast>>,
     /// The last result or error, in words.
     pub message: Option<String>,
+    /// Steps that can be taken back, oldest first (at most [`UNDO_DEPTH`]).
+    pub undo: Vec<PlanUndo>,
+}
+
+/// How many plan steps the window can take back.
+pub const UNDO_DEPTH: usize = 20;
+
+/// Label of the button that takes back the last plan step (followed by what it did).
+pub const UNDO_LABEL: &str = "Undo";
+
+/// What the planner asked for in one frame.
+#[derive(Debug, Clone, PartialEq)]
+pub enum PlanAsk {
+    /// Apply these changes.
+    Change(Vec<PlanChange>),
+    /// Take back this step (the last one done).
+    Undo(PlanUndo),
 }
 
 impl PlanPanel {
@@ -159,6 +178,7 @@ impl PlanPanel {
             board: load_board(store, today)?,
             forecasts: None,
             message: None,
+            undo: Vec::new(),
         })
     }
 
@@ -177,6 +197,7 @@ impl PlanPanel {
             board,
             forecasts: Some(forecasts),
             message: None,
+            undo: Vec::new(),
         })
     }
 
@@ -193,30 +214,90 @@ impl PlanPanel {
         Ok(())
     }
 
-    /// Draws the calendar, applies the planner's changes to `store` and reloads the board (all on the
-    /// calling thread: for tests and tools; the window sends the changes to its data thread instead,
-    /// see [`Self::draw`] and [`apply_changes`]).
-    pub fn ui(&mut self, ui: &mut egui::Ui, store: &mut Store) {
-        let changes = self.draw(ui);
-        if changes.is_empty() {
-            return;
+    /// A panel for a board read elsewhere (the window's data thread), with the stored forecasts.
+    #[must_use]
+    pub fn from_board(board: PlanBoard) -> Self {
+        Self {
+            view: PlanView::default(),
+            board,
+            forecasts: None,
+            message: None,
+            undo: Vec::new(),
         }
-        let (message, board) =
-            apply_changes(store, self.board.today, self.forecasts.as_ref(), &changes);
-        self.received(message, board);
+    }
+
+    /// Draws the calendar, applies the planner's changes (or takes back the last step) in `store` and
+    /// reloads the board (all on the calling thread: for tests and tools; the window sends them to its
+    /// data thread instead, see [`Self::draw`] and [`apply_changes`]).
+    pub fn ui(&mut self, ui: &mut egui::Ui, store: &mut Store) {
+        let Some(ask) = self.draw(ui) else {
+            return;
+        };
+        let (message, board, outcome) = match ask {
+            PlanAsk::Change(changes) => {
+                apply_changes(store, self.board.today, self.forecasts.as_ref(), &changes)
+            }
+            PlanAsk::Undo(step) => {
+                undo_step(store, self.board.today, self.forecasts.as_ref(), &step)
+            }
+        };
+        self.received(message, board, outcome);
         ui.ctx().request_repaint();
     }
 
-    /// Draws the last message and the calendar; returns the changes asked for this frame.
-    pub fn draw(&mut self, ui: &mut egui::Ui) -> Vec<PlanChange> {
+    /// Draws the last message, the undo button and the calendar; returns what was asked this frame.
+    /// Ctrl+Z (Cmd+Z) asks for the undo too.
+    pub fn draw(&mut self, ui: &mut egui::Ui) -> Option<PlanAsk> {
+        let mut ask = None;
+        ui.horizontal_wrapped(|ui| {
+            if let Some(last) = self.undo.last() {
+                let shortcut = egui::KeyboardShortcut::new(egui::Modifiers::COMMAND, egui::Key::Z);
+                let clicked = ui
+                    .button(UNDO_LABEL)
+                    .on_hover_text(format!(
+                        "Take back the last change to the plan ({}): {}",
+                        ui.ctx().format_shortcut(&shortcut),
+                        last.what
+                    ))
+                    .clicked();
+                let typed = ui.input_mut(|i| i.consume_shortcut(&shortcut));
+                ui.weak(format!("last change: {}", last.what));
+                if clicked || typed {
+                    ask = Some(PlanAsk::Undo(last.clone()));
+                }
+            }
+        });
         if let Some(msg) = &self.message {
             ui.label(egui::RichText::new(msg).strong());
         }
-        self.view.ui(ui, &self.board)
+        let changes = self.view.ui(ui, &self.board);
+        if ask.is_none() && !changes.is_empty() {
+            ask = Some(PlanAsk::Change(changes));
+        }
+        ask
     }
 
-    /// Takes the outcome of [`apply_changes`]: the message, and the board read again.
-    pub fn received<E: std::fmt::Display>(&mut self, message: String, board: Result<PlanBoard, E>) {
+    /// Takes the outcome of [`apply_changes`] or [`undo_step`]: the message, the board read again, and
+    /// what became of the undo list. An undo that went through leaves the list; one refused stays, so
+    /// the reason shows and nothing is lost.
+    pub fn received<E: std::fmt::Display>(
+        &mut self,
+        message: String,
+        board: Result<PlanBoard, E>,
+        outcome: StepOutcome,
+    ) {
+        match outcome {
+            StepOutcome::Changed(Some(step)) => {
+                self.undo.push(step);
+                if self.undo.len() > UNDO_DEPTH {
+                    self.undo.remove(0);
+                }
+            }
+            StepOutcome::Undone => {
+                self.undo.pop();
+            }
+            StepOutcome::Changed(None) | StepOutcome::NotUndone => {}
+        }
         match board {
             Ok(board) => {
                 self.board = board;
@@ -229,19 +310,51 @@ impl PlanPanel {
     }
 }
 
+/// What a plan step did to the undo list.
+#[derive(Debug, Clone, PartialEq)]
+pub enum StepOutcome {
+    /// Changes were applied; the step that takes them back (`None` when nothing changed).
+    Changed(Option<PlanUndo>),
+    /// The last step was taken back.
+    Undone,
+    /// The undo was refused (the message says why).
+    NotUndone,
+}
+
+/// Takes back `step` in `store` and reads the board again; the message says what was undone or why
+/// not (see [`spallcast_plan::source::undo`]).
+pub fn undo_step(
+    store: &mut Store,
+    today: NaiveDate,
+    forecasts: Option<&BTreeMap<i64, Forecast>>,
+    step: &PlanUndo,
+) -> (String, spallcast_plan::Result<PlanBoard>, StepOutcome) {
+    let (message, outcome) = match undo(store, step) {
+        Ok(line) => (line, StepOutcome::Undone),
+        Err(err) => (format!("Not undone: {err}"), StepOutcome::NotUndone),
+    };
+    let board = match forecasts {
+        Some(f) => load_board_with(store, today, f),
+        None => load_board(store, today),
+    };
+    (message, board, outcome)
+}
+
 /// Applies the planner's changes to `store`, one small transaction each, and reads the board again.
 /// Returns the message in words (what was done, warnings for the slot chosen, or why not) and the new
-/// board. `forecasts`: as for [`PlanPanel::load_with`]; `None` reads the stored ones.
+/// board, and the step that takes the changes back (`None` when nothing changed). `forecasts`: as for
+/// [`PlanPanel::load_with`]; `None` reads the stored ones.
 pub fn apply_changes(
     store: &mut Store,
     today: NaiveDate,
     forecasts: Option<&BTreeMap<i64, Forecast>>,
     changes: &[PlanChange],
-) -> (String, spallcast_plan::Result<PlanBoard>) {
+) -> (String, spallcast_plan::Result<PlanBoard>, StepOutcome) {
     let mut lines = Vec::new();
     let mut assigned = Vec::new();
-    for change in changes {
-        match apply_change(store, change) {
+    let (outcomes, step) = apply_changes_undoable(store, changes);
+    for (change, outcome) in changes.iter().zip(outcomes) {
+        match outcome {
             Ok(done) => {
                 lines.push(done);
                 if let PlanChange::Assign { life_id, outage_id } = change {
@@ -260,7 +373,7 @@ pub fn apply_changes(
             lines.extend(slot_warnings_after(board, life_id, outage_id));
         }
     }
-    (lines.join("\n"), board)
+    (lines.join("\n"), board, StepOutcome::Changed(step))
 }
 
 /// Warnings, in words, for a bearing life just planned into an outage (read from the new board).
