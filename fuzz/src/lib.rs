@@ -7,6 +7,10 @@ use std::sync::OnceLock;
 
 use spallcast_formats::{FormatError, Recording};
 
+/// The plant-file values check (the `plant_values` target).
+#[cfg(feature = "plant")]
+pub mod plant_values;
+
 /// A per-process scratch folder, created once.
 fn scratch_dir() -> &'static Path {
     static DIR: OnceLock<PathBuf> = OnceLock::new();

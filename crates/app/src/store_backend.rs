@@ -377,9 +377,11 @@ impl PlantSource for StoreSource {
                 });
             }
         }
+        // Soonest first; on the same day the later stage first (it has less margin), then by name.
         due.sort_by(|a, b| {
             a.replace_by
                 .cmp(&b.replace_by)
+                .then_with(|| b.stage.cmp(&a.stage))
                 .then_with(|| a.key.cmp(&b.key))
         });
         let rejected = self

@@ -1019,3 +1019,32 @@ fn save_plot_writes_a_png_of_the_plot_and_a_valid_svg() {
         );
     }
 }
+
+/// The amplitude axis fits the curves and stays put: marker labels once hung from the top of the view,
+/// and as the axis fits everything drawn, each frame lifted it a margin higher (the demo's stage-4
+/// spectrum opened with its axis at ten times its highest peak).
+#[test]
+fn the_amplitude_axis_fits_the_curves_and_does_not_creep() {
+    let fx = build_fixture();
+    let mut h = harness(&fx.db, true);
+    settle(&mut h);
+    h.get_by_label(BEARING_LABEL).click();
+    h.step();
+    settle(&mut h);
+    h.run_steps(5);
+    let first = h.state().spectra_panel().summary.view_top;
+    h.run_steps(60);
+    let s = &h.state().spectra_panel().summary;
+    assert!(s.y_top > 0.0 && !s.markers.is_empty(), "{s:?}");
+    assert!(
+        s.view_top <= 1.3 * s.y_top,
+        "axis top {} for a highest peak {}",
+        s.view_top,
+        s.y_top
+    );
+    assert!(
+        (s.view_top - first).abs() <= 1e-9 * first.abs().max(1.0),
+        "axis top moved from {first} to {} without any input",
+        s.view_top
+    );
+}

@@ -185,6 +185,16 @@ fn every_view_and_export_gives_each_demo_bearing_the_same_call() {
         compared += 1;
     }
     assert_eq!(compared, cli.len(), "every bearing compared");
+    // "Due soonest": by replace-by day, and on one day the later stage first.
+    for w in attention.due.windows(2) {
+        assert!(
+            (w[0].replace_by, std::cmp::Reverse(w[0].stage))
+                <= (w[1].replace_by, std::cmp::Reverse(w[1].stage)),
+            "due list order: {:?} before {:?}",
+            w[0],
+            w[1]
+        );
+    }
 
     mark_done_then_undo(source.as_mut(), &cli, &db);
 }

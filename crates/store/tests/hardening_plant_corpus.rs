@@ -92,3 +92,89 @@ fn demo_plant_file_round_trips() {
     assert_eq!(plant, again);
     assert_eq!(first, again.to_toml().unwrap());
 }
+
+#[path = "../../../fuzz/src/plant_values.rs"]
+#[allow(
+    dead_code,
+    clippy::all,
+    clippy::pedantic,
+    reason = "the fuzz crate's check, included by path; linted there"
+)]
+mod plant_values;
+
+/// Replays the plant-values fuzz corpus (`fuzz/corpus/plant_values/`, and any regressions) through the
+/// same check the fuzz target applies (issue 16 item 6: accepted values are usable, refused ones name
+/// the file).
+#[test]
+fn plant_values_corpus_and_regressions() {
+    let mut replayed = 0;
+    for kind in ["corpus", "regressions"] {
+        let Ok(entries) = std::fs::read_dir(fuzz_dir().join(kind).join("plant_values")) else {
+            continue;
+        };
+        for entry in entries {
+            let path = entry.unwrap().path();
+            if path.is_file() {
+                let bytes = std::fs::read(&path).unwrap();
+                if let Err(panic) = std::panic::catch_unwind(|| plant_values::check(&bytes)) {
+                    let why = panic
+                        .downcast_ref::<String>()
+                        .cloned()
+                        .or_else(|| panic.downcast_ref::<&str>().map(|s| (*s).to_owned()))
+                        .unwrap_or_default();
+                    panic!("input {}: {why}", path.display());
+                }
+                replayed += 1;
+            }
+        }
+    }
+    assert!(
+        replayed >= 20,
+        "expected the committed plant-values corpus, replayed {replayed} inputs"
+    );
+}
+
+/// The hand-made plant-values regressions (`fuzz/regressions/plant_values/`, one per value issue 16
+/// item 6 names): each bad value is refused with the file named, and the otherwise identical `valid`
+/// file is accepted, so a refusal is the value's doing.
+#[test]
+fn each_bad_plant_value_is_refused_and_the_valid_twin_accepted() {
+    let dir = fuzz_dir().join("regressions").join("plant_values");
+    let mut names = Vec::new();
+    for entry in std::fs::read_dir(&dir).unwrap() {
+        let path = entry.unwrap().path();
+        let name = path.file_name().unwrap().to_string_lossy().into_owned();
+        let text = plant_values::plant_text(&std::fs::read(&path).unwrap());
+        let result = PlantFile::parse(&text, Path::new(plant_values::PLANT_PATH));
+        if name == "valid" {
+            assert!(
+                result.is_ok(),
+                "{name}: {:?}",
+                result.err().map(|e| e.to_string())
+            );
+        } else {
+            let err = result
+                .err()
+                .unwrap_or_else(|| panic!("{name}: accepted:\n{text}"));
+            assert!(
+                err.to_string().contains(plant_values::PLANT_PATH),
+                "{name}: {err}"
+            );
+        }
+        names.push(name);
+    }
+    names.sort();
+    for expected in [
+        "valid",
+        "nan-rpm",
+        "negative-rpm",
+        "angle-95",
+        "empty-machine-id",
+        "duplicate-outage",
+    ] {
+        assert!(
+            names.iter().any(|n| n == expected),
+            "regression {expected} missing: {names:?}"
+        );
+    }
+}

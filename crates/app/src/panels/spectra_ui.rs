@@ -38,6 +38,8 @@ pub struct SpectraFrameSummary {
     pub y_title: String,
     /// Highest amplitude drawn (display unit; log10 of it on the log scale; stacked: with offsets).
     pub y_top: f64,
+    /// Top of the amplitude axis shown.
+    pub view_top: f64,
 }
 
 /// Cursor readout under the plot.
@@ -423,6 +425,7 @@ impl SpectraPanel {
         let count = curves.len();
         let mut plotted = 0;
         let mut data_top = f64::MIN;
+        let mut view_top = f64::NAN;
         let mut x_range = (0.0, 0.0);
         let full_x = if max_x > 0.0 { max_x } else { 1.0 };
         // Scrolling zooms the frequency axis about the pointer and dragging pans it; the amplitude
@@ -583,7 +586,8 @@ impl SpectraPanel {
                     );
                 }
             }
-            draw_markers(pui, &marker_xs, range, data_top.is_finite());
+            draw_markers(pui, &marker_xs, range, data_top);
+            view_top = pui.plot_bounds().max()[1];
             pui.pointer_coordinate()
         });
         self.summary.drawn = curves.iter().map(|(r, _)| r.id).collect();
@@ -595,6 +599,7 @@ impl SpectraPanel {
         self.summary.x_range = x_range;
         self.summary.y_title = self.units.axis_title(kind);
         self.summary.y_top = data_top;
+        self.summary.view_top = view_top;
         picture.x_range = x_range;
         self.picture = (!curves.is_empty()).then_some((picture, response.response.rect));
         if refit {
@@ -679,7 +684,7 @@ fn draw_markers(
     pui: &mut egui_plot::PlotUi<'_>,
     marker_xs: &[(f64, &FaultMarker)],
     range: (f64, f64),
-    labelled: bool,
+    data_top: f64,
 ) {
     let visible: Vec<&(f64, &FaultMarker)> = marker_xs
         .iter()
@@ -695,9 +700,11 @@ fn draw_markers(
         };
         pui.vline(line);
     }
-    // Labels hang from the top of the view, so they stay in sight at any zoom.
-    let label_y = pui.plot_bounds().max()[1];
-    if labelled && label_y.is_finite() && visible.len() <= MAX_MARKER_LABELS {
+    // Labels hang from the top of the curves in view, so they stay in sight at any zoom. (Not from
+    // the top of the view: the amplitude axis fits everything drawn, labels included, so each frame
+    // would lift it a margin higher.)
+    let label_y = data_top;
+    if label_y.is_finite() && label_y > f64::MIN && visible.len() <= MAX_MARKER_LABELS {
         for (x, m) in visible.iter().filter(|(_, m)| m.sideband == 0) {
             let colour = palette::fault_colour(marker_kind(m));
             pui.text(
