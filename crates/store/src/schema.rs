@@ -454,6 +454,10 @@ impl Store {
                 |r| r.get(0),
             )
             .map_err(|e| classify(e, &path))?;
+        // Another opener may have migrated it since this one looked (concurrent first use).
+        if version >= to {
+            return Ok(());
+        }
         if version > 0 || has_tables {
             backup_beside(&self.conn, &path, version)?;
         }
@@ -581,11 +585,29 @@ fn uri_path(path: &Path) -> String {
 /// Copies the database to `<file>.v<version>.bak` (or `.v<version>.<n>.bak` when that exists) with
 /// `SQLite`'s `VACUUM INTO`, which writes a consistent copy even in WAL mode.
 fn backup_beside(conn: &Connection, path: &Path, version: i64) -> Result<PathBuf> {
+    // Reserve the name by creating the file (an empty file is a valid `VACUUM INTO` target), so two
+    // openers backing up at once never write into the same file.
     let mut backup = sibling(path, &format!("v{version}.bak"));
     let mut n = 1;
-    while backup.exists() {
-        backup = sibling(path, &format!("v{version}.{n}.bak"));
-        n += 1;
+    loop {
+        match std::fs::OpenOptions::new()
+            .write(true)
+            .create_new(true)
+            .open(&backup)
+        {
+            Ok(_) => break,
+            Err(e) if e.kind() == std::io::ErrorKind::AlreadyExists => {
+                backup = sibling(path, &format!("v{version}.{n}.bak"));
+                n += 1;
+            }
+            Err(e) => {
+                return Err(StoreError::Backup {
+                    path: path.to_path_buf(),
+                    backup: backup.clone(),
+                    message: e.to_string(),
+                });
+            }
+        }
     }
     let target = backup.to_string_lossy().into_owned();
     conn.execute("VACUUM INTO ?1", [&target])
