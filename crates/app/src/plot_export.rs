@@ -103,18 +103,23 @@ fn hex(c: egui::Color32) -> String {
     format!("#{:02x}{:02x}{:02x}", c.r(), c.g(), c.b())
 }
 
+/// The 1, 2 or 5 × 10^n step that cuts `span` into about `count` parts (at most `count`).
+pub fn nice_step(span: f64, count: usize) -> f64 {
+    let raw = span / count.max(1) as f64;
+    let mag = 10f64.powf(raw.log10().floor());
+    [1.0, 2.0, 5.0, 10.0]
+        .iter()
+        .map(|m| m * mag)
+        .find(|s| *s >= raw)
+        .unwrap_or(10.0 * mag)
+}
+
 /// About `count` round tick values (1, 2 or 5 × 10^n apart) covering `lo..=hi`.
 pub fn nice_ticks(lo: f64, hi: f64, count: usize) -> Vec<f64> {
     if !(lo.is_finite() && hi.is_finite()) || hi <= lo || count == 0 {
         return Vec::new();
     }
-    let raw = (hi - lo) / count as f64;
-    let mag = 10f64.powf(raw.log10().floor());
-    let step = [1.0, 2.0, 5.0, 10.0]
-        .iter()
-        .map(|m| m * mag)
-        .find(|s| *s >= raw)
-        .unwrap_or(10.0 * mag);
+    let step = nice_step(hi - lo, count);
     let first = (lo / step).ceil() as i64;
     let last = (hi / step).floor() as i64;
     (first..=last).map(|i| i as f64 * step).collect()

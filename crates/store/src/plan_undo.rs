@@ -108,12 +108,7 @@ impl Store {
         for (table_rows, (ours, (table, keys, cols))) in
             before.tables.iter().zip(now.tables.iter().zip(TABLES))
         {
-            let where_key = keys
-                .iter()
-                .enumerate()
-                .map(|(i, k)| format!("{k} = ?{}", i + 1))
-                .collect::<Vec<_>>()
-                .join(" AND ");
+            let where_key = key_condition(keys);
             // Rows that differ or are missing: update in place or insert (never delete and insert,
             // which would cascade to the rows that refer to them).
             for (key, vals) in table_rows {
@@ -155,12 +150,7 @@ impl Store {
             .zip(now.tables.iter().zip(TABLES))
             .rev()
         {
-            let where_key = keys
-                .iter()
-                .enumerate()
-                .map(|(i, k)| format!("{k} = ?{}", i + 1))
-                .collect::<Vec<_>>()
-                .join(" AND ");
+            let where_key = key_condition(keys);
             for (key, vals) in ours {
                 if table_rows.contains_key(key) {
                     continue;
@@ -190,6 +180,15 @@ impl Store {
         tx.commit()?;
         Ok(changed)
     }
+}
+
+/// `k1 = ?1 AND k2 = ?2 ...` for a table's key columns.
+fn key_condition(keys: &[&str]) -> String {
+    keys.iter()
+        .enumerate()
+        .map(|(i, k)| format!("{k} = ?{}", i + 1))
+        .collect::<Vec<_>>()
+        .join(" AND ")
 }
 
 fn values(key: &[Key], vals: &[Value]) -> Vec<Value> {

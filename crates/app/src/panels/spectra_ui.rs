@@ -130,13 +130,7 @@ pub fn frequency_grid(input: egui_plot::GridInput) -> Vec<egui_plot::GridMark> {
     if !(span.is_finite() && span > 0.0) {
         return Vec::new();
     }
-    let rough = span / 8.0;
-    let decade = 10f64.powf(rough.log10().floor());
-    let step = [1.0, 2.0, 5.0, 10.0]
-        .into_iter()
-        .map(|m| m * decade)
-        .find(|s| *s >= rough)
-        .unwrap_or(10.0 * decade);
+    let step = crate::plot_export::nice_step(span, 8);
     let minor = step / 5.0;
     let first = (lo / minor).floor() as i64;
     let last = (hi / minor).ceil() as i64;
