@@ -164,16 +164,20 @@ impl PreparedSignal {
         let taper_len = ((k as f64 * EDGE_TAPER) as usize).max(1);
         let scale = 2.0 / self.n as f64;
         for (i, (b, s)) in buf.iter_mut().zip(&self.spec[k_lo..=k_hi]).enumerate() {
-            let edge = i.min(k - 1 - i);
-            let w = if edge < taper_len {
-                0.5 - 0.5 * (std::f64::consts::PI * (edge as f64 + 0.5) / taper_len as f64).cos()
-            } else {
-                1.0
-            };
-            *b = *s * (w * scale);
+            *b = *s * (edge_weight(i, k, taper_len) * scale);
         }
         engine.fft_in_place(&mut buf, true);
         Ok((buf, self.fs_hz * m as f64 / self.n as f64))
+    }
+}
+
+/// Raised-cosine weight of line `i` of a band of `k` lines whose edges taper over `taper_len` lines.
+fn edge_weight(i: usize, k: usize, taper_len: usize) -> f64 {
+    let edge = i.min(k - 1 - i);
+    if edge < taper_len {
+        0.5 - 0.5 * (std::f64::consts::PI * (edge as f64 + 0.5) / taper_len as f64).cos()
+    } else {
+        1.0
     }
 }
 
@@ -346,6 +350,77 @@ pub fn limited_squared_envelope_spectrum(
     })
 }
 
+/// The squared envelope spectrum of one candidate band, for ranking candidates only: the same
+/// quantity as [`limited_squared_envelope_spectrum`] (the same taper, cap and scale), computed in single
+/// precision and returned only up to `reach_hz`. The band signal keeps its rate (`2k` samples for `k`
+/// lines in the band): at a lower rate the cap would clip other samples and fold its harmonics onto the
+/// low lines, and the ranking would no longer be that of the reported spectra. The reported spectrum of
+/// the band finally chosen is computed again in double precision by
+/// [`limited_squared_envelope_spectrum`].
+///
+/// # Errors
+/// As [`limited_squared_envelope_spectrum`].
+pub fn ranking_envelope_spectrum(
+    engine: &mut SpectrumEngine,
+    sig: &PreparedSignal,
+    lo_hz: f64,
+    hi_hz: f64,
+    cap_medians: Option<f64>,
+    reach_hz: f64,
+) -> Result<Spectrum, AnalysisError> {
+    let (k_lo, k_hi) = sig.bin_range(lo_hz, hi_hz)?;
+    let k = k_hi - k_lo + 1;
+    let df = sig.freq_step_hz();
+    let full_len = fast_len_at_least(2 * k);
+    let full_keep = (((hi_hz - lo_hz) / df).floor() as usize).clamp(1, full_len / 2);
+    let reach = if reach_hz.is_finite() && reach_hz > 0.0 {
+        (reach_hz / df).ceil() as usize + 1
+    } else {
+        full_keep
+    };
+    let keep = full_keep.min(reach);
+    let m = full_len;
+    let taper_len = ((k as f64 * EDGE_TAPER) as usize).max(1);
+    let scale = 2.0 / sig.n as f64;
+    let mut buf = vec![Complex::<f32>::new(0.0, 0.0); m];
+    for (i, (b, s)) in buf.iter_mut().zip(&sig.spec[k_lo..=k_hi]).enumerate() {
+        let c = *s * (edge_weight(i, k, taper_len) * scale);
+        *b = Complex::new(c.re as f32, c.im as f32);
+    }
+    engine.fft_in_place_f32(&mut buf, true);
+    let mut sq: Vec<f32> = buf.iter().map(Complex::norm_sqr).collect();
+    if let Some(kc) = cap_medians.filter(|k| k.is_finite() && *k > 0.0) {
+        // |z|² is never negative, and non-negative floats order as their bit patterns do, so the
+        // median is selected on integers (the same element `f32::total_cmp` would pick, faster).
+        let mut tmp: Vec<u32> = sq.iter().map(|v| v.to_bits()).collect();
+        let mid = tmp.len() / 2;
+        let (_, med, _) = tmp.select_nth_unstable(mid);
+        let cap = kc as f32 * f32::from_bits(*med);
+        if cap > 0.0 {
+            for v in &mut sq {
+                *v = v.min(cap);
+            }
+        }
+    }
+    let mean = (sq.iter().map(|&v| f64::from(v)).sum::<f64>() / m as f64) as f32;
+    for (b, p) in buf.iter_mut().zip(&sq) {
+        *b = Complex::new(p - mean, 0.0);
+    }
+    engine.fft_in_place_f32(&mut buf, false);
+    let values = buf[..keep.min(m / 2)]
+        .iter()
+        .map(|c| 2.0 * f64::from(c.norm()) / m as f64)
+        .collect();
+    Ok(Spectrum {
+        freq_step_hz: df,
+        values,
+        units: SpectrumUnits {
+            quantity: Quantity::SquaredEnvelopeG2,
+            detector: Detector::Peak,
+        },
+    })
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -442,6 +517,33 @@ mod tests {
             "SES {ses_ratio} raw {raw_ratio} band {:?}",
             kg.best
         );
+    }
+
+    // The single-precision ranking spectrum is the reported (double-precision, capped) spectrum cut at
+    // its reach: the same lines to float rounding, so ranking on it picks the band the reported spectra
+    // would. Signal: the impulse train of the SES check above, with knocks that the cap limits.
+    #[test]
+    fn ranking_spectrum_matches_the_reported_spectrum_below_its_reach() {
+        let (mut x, fs) = crate::testutil::impulse_train(105.9, 3000.0, 12_000.0, 10.0, 3.0, 5);
+        for k in [1_000, 40_000, 90_000] {
+            x[k] += 60.0;
+        }
+        let mut e = SpectrumEngine::new();
+        let sig = PreparedSignal::new(&mut e, &x, fs, false).unwrap();
+        for (lo, hi) in [(2_000.0, 4_000.0), (1_500.0, 5_400.0), (2_250.0, 3_000.0)] {
+            let full = limited_squared_envelope_spectrum(&mut e, &sig, lo, hi, Some(8.0)).unwrap();
+            let cut = ranking_envelope_spectrum(&mut e, &sig, lo, hi, Some(8.0), 700.0).unwrap();
+            assert!((cut.freq_step_hz - full.freq_step_hz).abs() < 1e-12);
+            let want = ((700.0 / full.freq_step_hz).ceil() as usize + 1).min(full.values.len());
+            assert_eq!(cut.values.len(), want, "band {lo}-{hi}");
+            let top = full.values.iter().copied().fold(0.0, f64::max);
+            for (i, (a, b)) in cut.values.iter().zip(&full.values).enumerate() {
+                assert!(
+                    (a - b).abs() <= 1e-4 * top,
+                    "band {lo}-{hi} line {i}: {a} vs {b}"
+                );
+            }
+        }
     }
 
     #[test]

@@ -71,6 +71,16 @@ fn local_max(values: &[f64], centre: f64, half: usize) -> Option<(usize, f64)> {
         .max_by(|a, b| a.1.total_cmp(&b.1))
 }
 
+/// The highest frequency (Hz) that [`score_family`] reads in a spectrum of line step `df_hz` for a
+/// family at `f0_hz` with sidebands at `sideband_hz`: the top harmonic at the top of the slip range,
+/// plus the wider of its floor window and its sidebands, plus a few lines of search. A spectrum cut
+/// above this gives the same score as the whole spectrum.
+pub fn family_reach_hz(f0_hz: f64, sideband_hz: Option<f64>, df_hz: f64, p: &SearchParams) -> f64 {
+    let half_w = (0.15 * f0_hz).max(25.0 * df_hz);
+    let side = sideband_hz.unwrap_or(0.0).max(0.0);
+    f64::from(p.max_harmonics) * f0_hz * (1.0 + p.tolerance) + half_w.max(side) + 4.0 * df_hz
+}
+
 /// Scores one fault family with fundamental `f0_hz` in an amplitude spectrum. `sideband_hz` is the
 /// expected modulation spacing; `shaft_hz` masks coinciding shaft harmonics. `None` when not even the
 /// fundamental fits in the spectrum.
@@ -109,9 +119,10 @@ pub fn score_family(
         let k = (f / shaft_hz).round();
         k >= 1.0 && (f - k * shaft_hz).abs() <= (2.0 * df).max(0.001 * f)
     };
-    let level_db = |h: u32, rho: f64| -> (f64, f64) {
-        let f = f64::from(h) * f0_hz * rho;
-        let Some((i, peak)) = local_max(v, f / df, 1) else {
+    // The level (dB over the harmonic's floor) of the strongest line next to line `centre`, and the
+    // frequency of that line (`f` where there is none).
+    let level_at = |h: u32, centre: f64, f: f64| -> (f64, f64) {
+        let Some((i, peak)) = local_max(v, centre, 1) else {
             return (0.0, f);
         };
         let fi = i as f64 * df;
@@ -124,12 +135,47 @@ pub fn score_family(
             .unwrap_or(f64::MIN_POSITIVE);
         (20.0 * (peak.max(f64::MIN_POSITIVE) / floor).log10(), fi)
     };
+    let level_db = |h: u32, rho: f64| -> (f64, f64) {
+        let f = f64::from(h) * f0_hz * rho;
+        level_at(h, f / df, f)
+    };
     let step = (df / (f64::from(h_max) * f0_hz)).max(1e-6);
     let steps = (2.0 * p.tolerance / step).ceil() as usize;
+    let rho_at = |s: usize| 1.0 - p.tolerance + s as f64 * step;
+    // Many slip steps land on the same line, so each harmonic's level is worked out once per line it
+    // can reach (the same arithmetic as `level_db`, so the search's sums are unchanged).
+    let tables: Vec<(f64, Vec<f64>)> = (1..=h_max)
+        .map(|h| {
+            let line = |rho: f64| (f64::from(h) * f0_hz * rho / df).round();
+            let (a, b) = (line(rho_at(0)), line(rho_at(steps)));
+            if !(a.is_finite() && b.is_finite() && a >= 0.0 && b >= a && b - a < 1e6) {
+                return (0.0, Vec::new());
+            }
+            let levels = (0..=(b - a) as usize)
+                .map(|j| {
+                    let c = a + j as f64;
+                    level_at(h, c, c * df).0.max(0.0)
+                })
+                .collect();
+            (a, levels)
+        })
+        .collect();
     let mut best = (f64::NEG_INFINITY, 1.0);
     for s in 0..=steps {
-        let rho = 1.0 - p.tolerance + s as f64 * step;
-        let total: f64 = (1..=h_max).map(|h| level_db(h, rho).0.max(0.0)).sum();
+        let rho = rho_at(s);
+        let total: f64 = (1..=h_max)
+            .map(|h| {
+                let f = f64::from(h) * f0_hz * rho;
+                let c = (f / df).round();
+                tables
+                    .get(h as usize - 1)
+                    .and_then(|(a, t)| {
+                        let j = c - a;
+                        (j >= 0.0).then(|| t.get(j as usize)).flatten().copied()
+                    })
+                    .unwrap_or_else(|| level_db(h, rho).0.max(0.0))
+            })
+            .sum();
         if total > best.0 {
             best = (total, rho);
         }

@@ -21,8 +21,9 @@ use super::rules::{ENVELOPE_CAP_MEDIANS, LINE_FACTOR, PRESENT_DB, TONAL_FRACTION
 use crate::AnalysisError;
 use crate::envelope::{
     KurtogramLimits, PreparedSignal, fast_kurtogram, limited_squared_envelope_spectrum,
+    ranking_envelope_spectrum,
 };
-use crate::findings::{SearchParams, score_family};
+use crate::findings::{SearchParams, family_reach_hz, score_family};
 use crate::kinematics::{FaultFrequencies, FaultKind};
 use crate::spectrum::{PowerSpectrum, Spectrum, SpectrumEngine};
 
@@ -133,6 +134,21 @@ pub(crate) fn best_family(
         .unwrap_or((FaultKind::OuterRace, 0.0))
 }
 
+/// The highest frequency any family's score reads in an envelope spectrum of line step `df_hz`.
+fn scoring_reach_hz(freqs: &FaultFrequencies, df_hz: f64, search: &SearchParams) -> f64 {
+    FaultKind::ALL
+        .iter()
+        .map(|&k| {
+            family_reach_hz(
+                freqs.defect_rate_hz(k),
+                freqs.sideband_spacing_hz(k),
+                df_hz,
+                search,
+            )
+        })
+        .fold(0.0, f64::max)
+}
+
 /// Chooses the demodulation band (see the module notes). Returns the choice, the prepared signal and
 /// the limited squared envelope spectrum of the chosen band.
 ///
@@ -187,19 +203,41 @@ pub(crate) fn choose_band(
     }
     cands.dedup_by(|a, b| (a.0[0] - b.0[0]).abs() < 1e-6 && (a.0[1] - b.0[1]).abs() < 1e-6);
     let cap = Some(ENVELOPE_CAP_MEDIANS.value);
-    let mut best: Option<(usize, FaultKind, f64, Spectrum)> = None;
+    // Candidates are ranked on a single-precision envelope spectrum cut where the family scores stop
+    // reading; a band listed twice (a kurtogram cell that is also a grid cell) is scored once.
+    let reach = scoring_reach_hz(freqs, sig.freq_step_hz(), search);
+    let mut best: Option<(usize, FaultKind, f64)> = None;
     let mut per_band: Vec<(FaultKind, f64)> = Vec::with_capacity(cands.len());
     for (i, (band, _, _)) in cands.iter().enumerate() {
-        let Ok(ses) = limited_squared_envelope_spectrum(engine, &sig, band[0], band[1], cap) else {
+        let seen = cands[..i]
+            .iter()
+            .position(|(b, _, _)| (b[0] - band[0]).abs() < 1e-6 && (b[1] - band[1]).abs() < 1e-6)
+            .and_then(|j| per_band.get(j).copied());
+        let scored = match seen {
+            Some(s) => Some(s),
+            None => ranking_envelope_spectrum(engine, &sig, band[0], band[1], cap, reach)
+                .ok()
+                .map(|ses| best_family(&ses, freqs, search)),
+        };
+        let Some((kind, score)) = scored.filter(|(_, s)| *s > f64::NEG_INFINITY) else {
             per_band.push((FaultKind::OuterRace, f64::NEG_INFINITY));
             continue;
         };
-        let (kind, score) = best_family(&ses, freqs, search);
         per_band.push((kind, score));
         if best.as_ref().is_none_or(|b| score > b.2) {
-            best = Some((i, kind, score, ses));
+            best = Some((i, kind, score));
         }
     }
+    // The chosen band's spectrum, family and score in double precision, as reported and used.
+    let best = match best {
+        Some((i, _, _)) => {
+            let band = cands[i].0;
+            let ses = limited_squared_envelope_spectrum(engine, &sig, band[0], band[1], cap)?;
+            let (kind, score) = best_family(&ses, freqs, search);
+            Some((i, kind, score, ses))
+        }
+        None => None,
+    };
     let Some((i, kind, score, ses)) = best else {
         return Err(AnalysisError::BadBand {
             lo_hz: limits.min_lower_edge_hz,
