@@ -1,8 +1,12 @@
 //! The real [`Backend`]: the `SQLite` store for data, the analysis crate for spectra.
+//!
+//! - [`plan_steps`]: the outage-plan calendar's asks carried out against a store on the calling thread.
 
 use std::collections::{BTreeMap, HashMap};
 use std::path::Path;
 use std::sync::{Arc, Mutex};
+
+pub mod plan_steps;
 
 use anyhow::Context as _;
 use spallcast_analysis::forecast::Lubrication;
@@ -516,7 +520,7 @@ impl PlantSource for StoreSource {
         crate::plan_view::StepOutcome,
     ) {
         let (message, board, outcome) =
-            crate::plan_view::apply_changes(&mut self.store, today, None, changes);
+            spallcast_plan::steps::apply_changes(&mut self.store, today, None, changes);
         (message, board.map_err(anyhow::Error::from), outcome)
     }
 
@@ -530,7 +534,7 @@ impl PlantSource for StoreSource {
         crate::plan_view::StepOutcome,
     ) {
         let (message, board, outcome) =
-            crate::plan_view::undo_step(&mut self.store, today, None, step);
+            spallcast_plan::steps::undo_step(&mut self.store, today, None, step);
         (message, board.map_err(anyhow::Error::from), outcome)
     }
 
