@@ -17,6 +17,7 @@
 
 pub mod actions;
 mod app;
+mod app_export;
 mod app_ui;
 pub mod assets;
 pub mod cache;

@@ -34,7 +34,7 @@ pub trait PlantSource: Send {
         today: NaiveDate,
         changes: &[PlanChange],
     ) -> (String, anyhow::Result<PlanBoard>, StepOutcome);
-    /// Takes back a plan step (see [`crate::plan_view::undo_step`]), then reads the plan again.
+    /// Takes back a plan step (see [`spallcast_plan::steps::undo_step`]), then reads the plan again.
     fn undo_plan(
         &mut self,
         today: NaiveDate,

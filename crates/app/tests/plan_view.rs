@@ -24,6 +24,7 @@ use egui_kittest::kittest::Queryable;
 use egui_kittest::{Harness, HarnessBuilder};
 use plan_fixture::d;
 use spallcast_app::plan_view::{PlanPanel, PlanView};
+use spallcast_app::store_backend::plan_steps;
 use spallcast_plan::Forecast;
 use spallcast_plan::source::PlanChange;
 use spallcast_store::{PlanStatus, Store};
@@ -68,7 +69,7 @@ fn fixture() -> Fixture {
     // IN-P2: replace by 5 Jan, at risk from 1 Mar: every intake outage starts after its replace-by
     // date (the winter stop on 11 Jan is the first), so an unplanned stop is needed.
     forecasts.insert(life_of(&store, "IN-P2"), fc(3, "2027-01-05", "2027-03-01"));
-    let panel = PlanPanel::load_with(&store, d("2026-12-01"), forecasts).unwrap();
+    let panel = plan_steps::load_with(&store, d("2026-12-01"), forecasts).unwrap();
     Fixture {
         store,
         panel,
@@ -76,10 +77,19 @@ fn fixture() -> Fixture {
     }
 }
 
+/// One frame of the calendar: draw it, and carry out what the planner asked in the store (the window
+/// does this on its data thread).
+fn draw(ui: &mut egui::Ui, fx: &mut Fixture) {
+    if let Some(ask) = fx.panel.draw(ui) {
+        plan_steps::execute(&mut fx.panel, &mut fx.store, &ask);
+        ui.ctx().request_repaint();
+    }
+}
+
 fn harness(fx: Fixture) -> Harness<'static, Fixture> {
     HarnessBuilder::default()
         .with_size(egui::vec2(1400.0, 1000.0))
-        .build_ui_state(|ui, fx: &mut Fixture| fx.panel.ui(ui, &mut fx.store), fx)
+        .build_ui_state(draw, fx)
 }
 
 fn planned(store: &Store) -> Vec<(i64, i64, PlanStatus)> {
@@ -272,11 +282,11 @@ fn planned_rows_stay_in_their_column_at_1280_by_720() {
         },
     )
     .unwrap();
-    fx.panel.reload(&fx.store).unwrap();
+    plan_steps::reload(&mut fx.panel, &fx.store).unwrap();
     // The window at 1280x720 less the plant tree (270 px): what the plan view gets.
     let mut h = HarnessBuilder::default()
         .with_size(egui::vec2(1010.0, 720.0))
-        .build_ui_state(|ui, fx: &mut Fixture| fx.panel.ui(ui, &mut fx.store), fx);
+        .build_ui_state(draw, fx);
     h.run();
     let right_column = h
         .get_by_label(spallcast_app::plan_view::NEEDS_HEADING)

@@ -20,5 +20,5 @@ mod plant;
 pub mod units;
 
 pub use kinematics::{FaultFactors, FaultFrequencies, FaultKind, Location};
-pub use plan::{Outage, PlanStatus};
+pub use plan::{Outage, OutageInput, PlanStatus};
 pub use plant::{Lubrication, MachineGroup, Support};

@@ -1,4 +1,5 @@
-//! Planning vocabulary shared by the store and the planner: outages and the state of a plan entry.
+//! Planning vocabulary shared by the store, the planner and the window: outages, the values for adding
+//! or updating one, and the state of a plan entry.
 
 use chrono::NaiveDate;
 use serde::{Deserialize, Serialize};
@@ -30,6 +31,21 @@ impl Outage {
     pub fn days(&self) -> i64 {
         (self.end - self.start).num_days() + 1
     }
+}
+
+/// Values for adding or updating an outage.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct OutageInput {
+    /// Unique name.
+    pub name: String,
+    /// First day.
+    pub start: NaiveDate,
+    /// Last day.
+    pub end: NaiveDate,
+    /// Area names.
+    pub areas: Vec<String>,
+    /// Machine ids (tags).
+    pub machines: Vec<String>,
 }
 
 /// State of a planned replacement.

@@ -8,6 +8,8 @@
 //! - [`csv_export`], [`ics`], [`html`]: the replacement list as RFC 4180 CSV (formula cells
 //!   neutralised), an RFC 5545 iCalendar file, and a printable HTML report with inline SVG plots.
 //! - [`source`]: the adapter that reads a board from the store and writes plan changes back.
+//! - [`steps`]: a plan step as the planner takes it (apply changes or undo, read the board again, say
+//!   in words what was done).
 //! - [`export_to_path`]: writes any of the three formats atomically.
 //!
 //! Calls are advisory: isolate and lock out a machine before work on it; local codes and licensed
@@ -24,6 +26,7 @@ pub mod ics;
 pub mod model;
 pub mod rules;
 pub mod source;
+pub mod steps;
 pub mod svg;
 
 use std::path::Path;

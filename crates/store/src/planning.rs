@@ -7,23 +7,9 @@ use serde::{Deserialize, Serialize};
 use crate::Store;
 use crate::error::{Result, StoreError};
 
-/// An outage as stored, and the state of a plan entry: shared vocabulary (`spallcast-model`).
-pub use spallcast_model::{Outage, PlanStatus};
-
-/// Values for adding or updating an outage.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct OutageInput {
-    /// Unique name.
-    pub name: String,
-    /// First day.
-    pub start: NaiveDate,
-    /// Last day.
-    pub end: NaiveDate,
-    /// Area names.
-    pub areas: Vec<String>,
-    /// Machine ids (tags).
-    pub machines: Vec<String>,
-}
+/// An outage as stored, the values for adding or updating one, and the state of a plan entry: shared
+/// vocabulary (`spallcast-model`).
+pub use spallcast_model::{Outage, OutageInput, PlanStatus};
 
 /// A bearing life planned into an outage.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]

@@ -3,25 +3,25 @@
 //! their replace-by date. A bearing is planned by dragging it onto an outage or by accepting the
 //! suggested outage; warnings are shown in words. Outages are added and edited in a small form.
 //!
-//! [`PlanView`] only draws a [`PlanBoard`] and returns [`PlanChange`]s; [`PlanPanel`] owns a board and
-//! the steps that can be taken back, applies the changes to the store with
-//! [`spallcast_plan::source::apply_changes_undoable`] and reloads. Each change is one small
-//! transaction; loading the board is a handful of indexed queries.
+//! [`PlanView`] only draws a [`PlanBoard`] and returns [`PlanChange`]s; [`PlanPanel`] holds a board,
+//! the steps that can be taken back and the last message, and returns a [`PlanAsk`] from
+//! [`PlanPanel::draw`]. It never touches the database: the window's data thread carries the ask out
+//! ([`spallcast_plan::steps::apply_changes`], [`spallcast_plan::steps::undo_step`], through
+//! [`crate::store_backend`]) and hands the outcome back to [`PlanPanel::received`];
+//! [`crate::store_backend::plan_steps`] does the same on the calling thread for tools and tests.
 
 mod cards_ui;
 mod outage_editor;
 
 use std::collections::BTreeMap;
 
-use chrono::NaiveDate;
 use eframe::egui;
-use spallcast_plan::source::{
-    PlanChange, PlanUndo, apply_changes_undoable, load_board, load_board_with, undo,
-};
+use spallcast_plan::source::{PlanChange, PlanUndo};
 use spallcast_plan::{Forecast, PlanBoard};
-use spallcast_store::Store;
 
 pub use outage_editor::OutageEditor;
+/// What a plan step did to the undo list (defined with the plan steps in `spallcast-plan`).
+pub use spallcast_plan::steps::StepOutcome;
 
 /// What is dragged: a bearing life.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -168,52 +168,6 @@ pub enum PlanAsk {
 }
 
 impl PlanPanel {
-    /// Reads the plan from `store` as of `today`, with the stored forecasts.
-    ///
-    /// # Errors
-    /// A store error while reading.
-    pub fn load(store: &Store, today: NaiveDate) -> spallcast_plan::Result<Self> {
-        Ok(Self {
-            view: PlanView::default(),
-            board: load_board(store, today)?,
-            forecasts: None,
-            message: None,
-            undo: Vec::new(),
-        })
-    }
-
-    /// Reads the plan with forecasts supplied by the caller (by bearing life id).
-    ///
-    /// # Errors
-    /// A store error while reading.
-    pub fn load_with(
-        store: &Store,
-        today: NaiveDate,
-        forecasts: BTreeMap<i64, Forecast>,
-    ) -> spallcast_plan::Result<Self> {
-        let board = load_board_with(store, today, &forecasts)?;
-        Ok(Self {
-            view: PlanView::default(),
-            board,
-            forecasts: Some(forecasts),
-            message: None,
-            undo: Vec::new(),
-        })
-    }
-
-    /// Reads the board again (after an import or a change made elsewhere).
-    ///
-    /// # Errors
-    /// A store error while reading.
-    pub fn reload(&mut self, store: &Store) -> spallcast_plan::Result<()> {
-        let today = self.board.today;
-        self.board = match &self.forecasts {
-            Some(f) => load_board_with(store, today, f)?,
-            None => load_board(store, today)?,
-        };
-        Ok(())
-    }
-
     /// A panel for a board read elsewhere (the window's data thread), with the stored forecasts.
     #[must_use]
     pub fn from_board(board: PlanBoard) -> Self {
@@ -226,23 +180,14 @@ impl PlanPanel {
         }
     }
 
-    /// Draws the calendar, applies the planner's changes (or takes back the last step) in `store` and
-    /// reloads the board (all on the calling thread: for tests and tools; the window sends them to its
-    /// data thread instead, see [`Self::draw`] and [`apply_changes`]).
-    pub fn ui(&mut self, ui: &mut egui::Ui, store: &mut Store) {
-        let Some(ask) = self.draw(ui) else {
-            return;
-        };
-        let (message, board, outcome) = match ask {
-            PlanAsk::Change(changes) => {
-                apply_changes(store, self.board.today, self.forecasts.as_ref(), &changes)
-            }
-            PlanAsk::Undo(step) => {
-                undo_step(store, self.board.today, self.forecasts.as_ref(), &step)
-            }
-        };
-        self.received(message, board, outcome);
-        ui.ctx().request_repaint();
+    /// A panel for a board read with forecasts supplied by the caller (by bearing life id); the data
+    /// layer reads the board again with the same forecasts after each step.
+    #[must_use]
+    pub fn with_forecasts(board: PlanBoard, forecasts: BTreeMap<i64, Forecast>) -> Self {
+        Self {
+            forecasts: Some(forecasts),
+            ..Self::from_board(board)
+        }
     }
 
     /// Draws the last message, the undo button and the calendar; returns what was asked this frame.
@@ -277,7 +222,8 @@ impl PlanPanel {
         ask
     }
 
-    /// Takes the outcome of [`apply_changes`] or [`undo_step`]: the message, the board read again, and
+    /// Takes the outcome of [`spallcast_plan::steps::apply_changes`] or
+    /// [`spallcast_plan::steps::undo_step`]: the message, the board read again, and
     /// what became of the undo list. An undo that went through leaves the list; one refused stays, so
     /// the reason shows and nothing is lost.
     pub fn received<E: std::fmt::Display>(
@@ -308,92 +254,4 @@ impl PlanPanel {
             }
         }
     }
-}
-
-/// What a plan step did to the undo list.
-#[derive(Debug, Clone, PartialEq)]
-pub enum StepOutcome {
-    /// Changes were applied; the step that takes them back (`None` when nothing changed).
-    Changed(Option<PlanUndo>),
-    /// The last step was taken back.
-    Undone,
-    /// The undo was refused (the message says why).
-    NotUndone,
-}
-
-/// Takes back `step` in `store` and reads the board again; the message says what was undone or why
-/// not (see [`spallcast_plan::source::undo`]).
-pub fn undo_step(
-    store: &mut Store,
-    today: NaiveDate,
-    forecasts: Option<&BTreeMap<i64, Forecast>>,
-    step: &PlanUndo,
-) -> (String, spallcast_plan::Result<PlanBoard>, StepOutcome) {
-    let (message, outcome) = match undo(store, step) {
-        Ok(line) => (line, StepOutcome::Undone),
-        Err(err) => (format!("Not undone: {err}"), StepOutcome::NotUndone),
-    };
-    let board = match forecasts {
-        Some(f) => load_board_with(store, today, f),
-        None => load_board(store, today),
-    };
-    (message, board, outcome)
-}
-
-/// Applies the planner's changes to `store`, one small transaction each, and reads the board again.
-/// Returns the message in words (what was done, warnings for the slot chosen, or why not) and the new
-/// board, and the step that takes the changes back (`None` when nothing changed). `forecasts`: as for
-/// [`PlanPanel::load_with`]; `None` reads the stored ones.
-pub fn apply_changes(
-    store: &mut Store,
-    today: NaiveDate,
-    forecasts: Option<&BTreeMap<i64, Forecast>>,
-    changes: &[PlanChange],
-) -> (String, spallcast_plan::Result<PlanBoard>, StepOutcome) {
-    let mut lines = Vec::new();
-    let mut assigned = Vec::new();
-    let (outcomes, step) = apply_changes_undoable(store, changes);
-    for (change, outcome) in changes.iter().zip(outcomes) {
-        match outcome {
-            Ok(done) => {
-                lines.push(done);
-                if let PlanChange::Assign { life_id, outage_id } = change {
-                    assigned.push((*life_id, *outage_id));
-                }
-            }
-            Err(err) => lines.push(format!("Not done: {err}")),
-        }
-    }
-    let board = match forecasts {
-        Some(f) => load_board_with(store, today, f),
-        None => load_board(store, today),
-    };
-    if let Ok(board) = &board {
-        for (life_id, outage_id) in assigned {
-            lines.extend(slot_warnings_after(board, life_id, outage_id));
-        }
-    }
-    (lines.join("\n"), board, StepOutcome::Changed(step))
-}
-
-/// Warnings, in words, for a bearing life just planned into an outage (read from the new board).
-fn slot_warnings_after(board: &PlanBoard, life_id: i64, outage_id: i64) -> Vec<String> {
-    let Some(outage) = board.outage(outage_id) else {
-        return Vec::new();
-    };
-    let need = board
-        .entries
-        .iter()
-        .find(|e| e.life.life_id == life_id && e.outage_id == outage_id)
-        .and_then(|e| {
-            Some(spallcast_plan::BearingNeed {
-                life: e.life.clone(),
-                forecast: e.forecast.clone()?,
-            })
-        });
-    need.map(|need| spallcast_plan::slot_warnings(&need, outage, board.today))
-        .unwrap_or_default()
-        .iter()
-        .map(|w| format!("Warning: {w}"))
-        .collect()
 }

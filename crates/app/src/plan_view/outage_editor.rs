@@ -2,9 +2,9 @@
 //! the two in step when a plant file is applied or written.
 
 use eframe::egui;
+use spallcast_model::OutageInput;
 use spallcast_plan::Outage;
 use spallcast_plan::source::PlanChange;
-use spallcast_store::OutageInput;
 
 use super::WARNING_TEXT;
 

@@ -1,13 +1,21 @@
 //! The real [`Backend`]: the `SQLite` store for data, the analysis crate for spectra.
+//!
+//! - `spectra` ([`compute_spectra`]): a reading's three spectra from the analysis crate.
+//! - [`plan_steps`]: the outage-plan calendar's asks carried out against a store on the calling thread.
 
 use std::collections::{BTreeMap, HashMap};
 use std::path::Path;
 use std::sync::{Arc, Mutex};
 
+pub mod plan_steps;
+mod spectra;
+
+pub use spectra::compute_spectra;
+
 use anyhow::Context as _;
 use spallcast_analysis::forecast::Lubrication;
 use spallcast_analysis::record::StageRecord;
-use spallcast_analysis::{FaultFactors, FaultFrequencies, MachineGroup, SpectrumEngine, Support};
+use spallcast_analysis::{FaultFactors, MachineGroup, SpectrumEngine, Support};
 use spallcast_model::units::date_of_unix_s;
 use spallcast_plan::source::bearing_calls;
 use spallcast_store::{ReadingAnalyzer, Store};
@@ -15,7 +23,7 @@ use spallcast_store::{ReadingAnalyzer, Store};
 use crate::model::{
     Annotation, AreaNode, Attention, BearingHistory, BearingKey, BearingNode, ChangedBearing,
     DueBearing, ForecastView, ImportProgress, ImportSummary, MachineNode, NoteView, PlantTree,
-    ReadingId, ReadingSpectra, ReadingSummary, RejectedFile, Spectrum, StageCallView, Waveform,
+    ReadingId, ReadingSpectra, ReadingSummary, RejectedFile, StageCallView, Waveform,
 };
 use crate::source::{Backend, PlantSource};
 
@@ -108,63 +116,6 @@ impl Backend for StoreBackend {
             .map_err(|_| anyhow::anyhow!("the spectrum engine was poisoned by a panic"))?;
         compute_spectra(&mut engine, waveform)
     }
-}
-
-/// Acceleration, velocity and envelope spectra of one waveform, with the analysis crate's plot settings.
-pub fn compute_spectra(
-    engine: &mut SpectrumEngine,
-    waveform: &Waveform,
-) -> anyhow::Result<ReadingSpectra> {
-    let samples: Vec<f64> = waveform.samples_g.iter().map(|&v| f64::from(v)).collect();
-    let fs = waveform.sample_rate_hz;
-    let shaft_hz = waveform.shaft_hz;
-    let id = waveform.reading_id;
-    let accel = spallcast_analysis::acceleration_spectrum(
-        engine,
-        &samples,
-        fs,
-        shaft_hz,
-        spallcast_analysis::AccelUnit::default(),
-    )
-    .with_context(|| format!("acceleration spectrum of reading {id}"))?;
-    let velocity = spallcast_analysis::velocity_spectrum(
-        engine,
-        &samples,
-        fs,
-        shaft_hz,
-        spallcast_analysis::VelocityUnit::default(),
-    )
-    .with_context(|| format!("velocity spectrum of reading {id}"))?;
-    // Without fault factors the kurtogram has no defect rate to size its band by: use a wide fixed band
-    // in the upper part of the recording instead.
-    let (freqs, band) = match waveform.factors {
-        Some(f) => (f.at_shaft_hz(shaft_hz), None),
-        None => (
-            FaultFrequencies {
-                shaft_hz,
-                ftf: shaft_hz,
-                bsf: shaft_hz,
-                bpfo: shaft_hz,
-                bpfi: shaft_hz,
-            },
-            Some((0.1 * fs, 0.4 * fs)),
-        ),
-    };
-    let (envelope, band_used) =
-        spallcast_analysis::envelope_spectrum(engine, &samples, fs, &freqs, band, false)
-            .with_context(|| format!("envelope spectrum of reading {id}"))?;
-    let convert = |s: &spallcast_analysis::Spectrum| Spectrum {
-        df_hz: s.freq_step_hz,
-        amplitude: s.values.iter().map(|&v| v as f32).collect(),
-    };
-    Ok(ReadingSpectra {
-        reading_id: id,
-        shaft_hz,
-        acceleration: convert(&accel),
-        velocity: convert(&velocity),
-        envelope: convert(&envelope),
-        envelope_band_hz: Some((band_used[0], band_used[1])),
-    })
 }
 
 /// What the source remembers about a bearing position between queries.
@@ -516,7 +467,7 @@ impl PlantSource for StoreSource {
         crate::plan_view::StepOutcome,
     ) {
         let (message, board, outcome) =
-            crate::plan_view::apply_changes(&mut self.store, today, None, changes);
+            spallcast_plan::steps::apply_changes(&mut self.store, today, None, changes);
         (message, board.map_err(anyhow::Error::from), outcome)
     }
 
@@ -530,7 +481,7 @@ impl PlantSource for StoreSource {
         crate::plan_view::StepOutcome,
     ) {
         let (message, board, outcome) =
-            crate::plan_view::undo_step(&mut self.store, today, None, step);
+            spallcast_plan::steps::undo_step(&mut self.store, today, None, step);
         (message, board.map_err(anyhow::Error::from), outcome)
     }
 
@@ -619,64 +570,4 @@ pub fn forecast_from(record: &StageRecord) -> Option<ForecastView> {
 }
 
 #[cfg(test)]
-mod tests {
-    use super::*;
-
-    /// A stage record as the pipeline stores it (schema 1), with the given `replace_by` projection.
-    fn record(replace_by: &serde_json::Value) -> StageRecord {
-        serde_json::from_value(serde_json::json!({
-            "schema_version": 1,
-            "point": "X-1",
-            "call": { "index": 0, "t_s": 1_770_000_000.0, "stage": 2, "raw_stage": 2,
-                      "location": "outer race", "confidence": 0.7,
-                      "evidence": ["BPFO in the envelope"], "limits": ["one point only"],
-                      "relative": {}, "damage_index_db": 4.0, "in_baseline": false },
-            "forecast": { "as_of_s": 1_770_000_000.0, "stage": 2, "location": "outer race",
-                          "confidence": 0.7, "evidence": [], "replace_by": replace_by,
-                          "risk_from": null, "method": "trend", "assumptions": [] },
-        }))
-        .unwrap()
-    }
-
-    #[test]
-    fn evidence_as_the_pipeline_stores_it() {
-        let v = record(
-            &serde_json::json!({ "t_s": 1_780_000_000.0, "lo_s": 1_775_000_000.0, "hi_s": null }),
-        );
-        assert_eq!(
-            v.sentences(),
-            vec![
-                "BPFO in the envelope".to_owned(),
-                "one point only".to_owned()
-            ]
-        );
-        let f = forecast_from(&v).unwrap();
-        // 1_780_000_000 s after 1970-01-01T00:00Z is 2026-05-28T20:26:40Z (Unix time, by definition).
-        assert_eq!(f.replace_by.to_string(), "2026-05-28");
-        assert_eq!(f.earliest.to_string(), "2026-03-31");
-        assert_eq!(f.latest, f.replace_by, "open interval: no upper date");
-        let mut none = v.clone();
-        none.forecast = None;
-        assert!(forecast_from(&none).is_none());
-        assert!(forecast_from(&record(&serde_json::Value::Null)).is_none());
-    }
-
-    #[test]
-    fn only_a_current_record_is_read() {
-        // Shapes the old lenient reader accepted are "no record" now: the stage number still shows.
-        let call = |evidence: serde_json::Value| spallcast_store::StageCall {
-            reading_id: 1,
-            stage: 2,
-            version: "test".into(),
-            evidence,
-            called_at: chrono::Utc::now(),
-        };
-        assert!(record_of(&call(serde_json::json!(["a", "b"]))).is_none());
-        assert!(record_of(&call(serde_json::json!({ "evidence": ["c"] }))).is_none());
-        let current = record(&serde_json::Value::Null);
-        assert!(record_of(&call(serde_json::to_value(&current).unwrap())).is_some());
-        let mut future = current;
-        future.schema_version = 2;
-        assert!(record_of(&call(serde_json::to_value(&future).unwrap())).is_none());
-    }
-}
+mod tests;
