@@ -199,29 +199,13 @@ impl SpectrumEngine {
 
     /// In-place unnormalised complex FFT (forward, or inverse without the 1/N factor).
     pub fn fft_in_place(&mut self, buf: &mut [Complex<f64>], inverse: bool) {
-        if buf.is_empty() {
-            return;
-        }
-        let plan = if inverse {
-            self.complex.plan_fft_inverse(buf.len())
-        } else {
-            self.complex.plan_fft_forward(buf.len())
-        };
-        plan.process(buf);
+        planned_fft_in_place(&mut self.complex, buf, inverse);
     }
 
     /// [`Self::fft_in_place`] in single precision: about twice the speed, for intermediate values whose
     /// rounding (~1e-7 relative) cannot matter, such as ranking candidate bands.
     pub fn fft_in_place_f32(&mut self, buf: &mut [Complex<f32>], inverse: bool) {
-        if buf.is_empty() {
-            return;
-        }
-        let plan = if inverse {
-            self.complex32.plan_fft_inverse(buf.len())
-        } else {
-            self.complex32.plan_fft_forward(buf.len())
-        };
-        plan.process(buf);
+        planned_fft_in_place(&mut self.complex32, buf, inverse);
     }
 
     /// Welch-averaged one-sided power estimate of `x` sampled at `fs_hz`.
@@ -437,6 +421,23 @@ pub(crate) fn check_finite(x: &[f64]) -> Result<(), AnalysisError> {
         Some(index) => Err(AnalysisError::NonFinite { index }),
         None => Ok(()),
     }
+}
+
+/// One in-place complex FFT with a plan from `planner` (cached there), at either precision.
+fn planned_fft_in_place<T: rustfft::FftNum>(
+    planner: &mut FftPlanner<T>,
+    buf: &mut [Complex<T>],
+    inverse: bool,
+) {
+    if buf.is_empty() {
+        return;
+    }
+    let plan = if inverse {
+        planner.plan_fft_inverse(buf.len())
+    } else {
+        planner.plan_fft_forward(buf.len())
+    };
+    plan.process(buf);
 }
 
 /// Largest length ≤ `n` whose only prime factors are 2, 3 and 5 (fast FFT sizes).
