@@ -219,7 +219,7 @@ fn bench_open_bearing() {
     let db = tmp.path().join("demo.sqlite");
     spallcast_pipeline::create_demo_database(&db, &mut |_, _, _| {}).unwrap();
     let backend = spallcast_app::default_backend();
-    let mut source = backend.open(&db).unwrap();
+    let mut source = backend.open(&db, &mut |_| {}).unwrap();
     let plant = source.plant().unwrap();
     let keys: Vec<BearingKey> = plant.bearings().map(|b| b.key.clone()).collect();
     let mut history_ms = Vec::new();

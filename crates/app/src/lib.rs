@@ -59,26 +59,67 @@ pub fn run_window(db_path: &Path) -> anyhow::Result<()> {
     run_window_with(db_path, Arc::new(default_backend()))
 }
 
-/// The backend `run_window` uses: the store, the analysis crate, and the store's route import with the
-/// pipeline's reading analyzer followed by the stage assessment (so new readings get their stage calls
-/// and forecasts before the window reloads).
+/// The backend `run_window` uses: the store, the analysis crate, and the pipeline's use cases with its
+/// reading analyzer: a route import is followed by the stage assessment (so new readings get their
+/// stage calls and forecasts before the window reloads), and a database is brought up to date as it is
+/// opened (readings of an older analysis version re-analysed, missing or stale stage calls completed),
+/// with progress in the status line.
 pub fn default_backend() -> StoreBackend {
+    use spallcast_analysis::stage::StageOptions;
+    use spallcast_pipeline::update::{Progress, bring_up_to_date, import_and_assess};
     StoreBackend::new(Arc::new(
         |db: &Path, folder: &Path, progress: &mut dyn FnMut(model::ImportProgress)| {
-            let summary = store_backend::store_import(
-                db,
-                folder,
+            let mut store = spallcast_store::Store::open(db)?;
+            let outcome = import_and_assess(
+                &mut store,
+                &[folder.to_path_buf()],
                 &spallcast_pipeline::SpallcastAnalyzer,
-                progress,
-            )?;
-            if summary.imported > 0 {
-                let mut store = spallcast_store::Store::open_existing(db)?;
-                spallcast_pipeline::assess::assess_store(
-                    &mut store,
-                    &spallcast_analysis::stage::StageOptions::default(),
-                )?;
-            }
+                &StageOptions::default(),
+                &mut |p| {
+                    if let Progress::Importing { done, total, .. } = p {
+                        progress(model::ImportProgress { done, total });
+                    }
+                },
+            )
+            .map_err(|e| anyhow::anyhow!(e.full_message()))?;
+            let mut summary = outcome
+                .summaries
+                .first()
+                .map(store_backend::summary_view)
+                .unwrap_or_default();
+            summary.assessment_failed = outcome.assessment.err().map(|e| e.full_message());
             Ok(summary)
         },
     ))
+    .with_updater(Arc::new(
+        |store: &mut spallcast_store::Store, progress: &mut dyn FnMut(model::UpdateProgress)| {
+            bring_up_to_date(
+                store,
+                &spallcast_pipeline::SpallcastAnalyzer,
+                &StageOptions::default(),
+                &mut |p| progress(update_progress(p)),
+            )
+            .map_err(|e| anyhow::anyhow!(e.full_message()))?;
+            Ok(())
+        },
+    ))
+}
+
+/// The window's words for a step of bringing a database up to date.
+fn update_progress(p: spallcast_pipeline::update::Progress) -> model::UpdateProgress {
+    use spallcast_pipeline::update::Progress;
+    let (what, done, total) = match p {
+        Progress::Importing { done, total, .. } => ("importing", done, total),
+        Progress::Reanalysing { done, total } => (
+            "re-analysing readings from an older analysis version",
+            done,
+            total,
+        ),
+        Progress::Assessing { done, total } => ("completing stage calls", done, total),
+    };
+    model::UpdateProgress {
+        what: what.to_owned(),
+        done,
+        total,
+    }
 }

@@ -449,6 +449,21 @@ pub struct ImportSummary {
     pub already_present: usize,
     /// Files refused, with reasons.
     pub rejected: Vec<RejectedFile>,
+    /// Why the stage assessment after the import failed, if it did (the import stands; the calls are
+    /// completed the next time the database is opened).
+    pub assessment_failed: Option<String>,
+}
+
+/// Progress of bringing a database up to date as it is opened (re-analysis of readings from an
+/// older analysis version, completion of missing or stale stage calls).
+#[derive(Debug, Clone, PartialEq)]
+pub struct UpdateProgress {
+    /// What is being done, in words.
+    pub what: String,
+    /// Steps done.
+    pub done: usize,
+    /// Steps in all.
+    pub total: usize,
 }
 
 /// Shared, immutable spectra as cached by the app.

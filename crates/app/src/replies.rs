@@ -13,6 +13,9 @@ impl SpallcastApp {
                 self.worker = None;
                 self.set_status(format!("could not open the database: {e}"), true);
             }
+            Reply::Updating(p) => {
+                self.set_status(format!("{}: {}/{}", p.what, p.done, p.total), false);
+            }
             Reply::Plant(result) => {
                 self.plant_loading = false;
                 match result {
@@ -72,15 +75,24 @@ impl SpallcastApp {
             Reply::ImportDone(result) => {
                 self.import = None;
                 match &result {
-                    Ok(s) => self.set_status(
-                        format!(
+                    Ok(s) => {
+                        let done = format!(
                             "import done: {} new, {} already present, {} rejected",
                             s.imported,
                             s.already_present,
                             s.rejected.len()
-                        ),
-                        false,
-                    ),
+                        );
+                        match &s.assessment_failed {
+                            None => self.set_status(done, false),
+                            Some(why) => self.set_status(
+                                format!(
+                                    "{done}; the stage assessment failed ({why}): the calls will be \
+                                     completed when the database is next opened"
+                                ),
+                                true,
+                            ),
+                        }
+                    }
                     Err(e) => self.set_status(format!("import failed: {e}"), true),
                 }
                 self.import_summary = Some(result);

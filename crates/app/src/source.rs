@@ -13,7 +13,7 @@ use crate::plan_view::StepOutcome;
 
 use crate::model::{
     Annotation, Attention, BearingHistory, BearingKey, ImportProgress, ImportSummary, PlantTree,
-    ReadingId, ReadingSpectra, Waveform,
+    ReadingId, ReadingSpectra, UpdateProgress, Waveform,
 };
 
 /// A read connection to one plant database. Not `Sync`: each worker thread opens its own.
@@ -50,8 +50,13 @@ pub trait PlantSource: Send {
 
 /// Opens sources, imports route folders and computes spectra. Shared by every worker thread.
 pub trait Backend: Send + Sync {
-    /// Opens a database for reading. The error names the file and what is wrong.
-    fn open(&self, db_path: &Path) -> anyhow::Result<Box<dyn PlantSource>>;
+    /// Opens a database for reading, first bringing it up to date where the backend does that
+    /// (re-analysis, stage calls), reporting progress. The error names the file and what is wrong.
+    fn open(
+        &self,
+        db_path: &Path,
+        progress: &mut dyn FnMut(UpdateProgress),
+    ) -> anyhow::Result<Box<dyn PlantSource>>;
     /// Imports a route folder into the database, reporting progress as it goes.
     fn import_route(
         &self,

@@ -18,7 +18,7 @@ use crate::plan_view::StepOutcome;
 
 use crate::model::{
     Annotation, Attention, BearingHistory, BearingKey, ImportProgress, ImportSummary, PlantTree,
-    ReadingId, SharedSpectra, Waveform,
+    ReadingId, SharedSpectra, UpdateProgress, Waveform,
 };
 use crate::source::{Backend, PlantSource};
 
@@ -50,6 +50,8 @@ pub enum Request {
 pub enum Reply {
     /// The database could not be opened.
     OpenFailed(String),
+    /// Bringing the database up to date as it opens.
+    Updating(UpdateProgress),
     /// Plant tree and attention lists.
     Plant(Result<(PlantTree, Attention), String>),
     /// One bearing's history.
@@ -138,7 +140,11 @@ fn serve(
     replies: &Sender<Reply>,
     ctx: &egui::Context,
 ) {
-    let mut source = match backend.open(db_path) {
+    let mut updating = |p: UpdateProgress| {
+        let _ = replies.send(Reply::Updating(p));
+        ctx.request_repaint();
+    };
+    let mut source = match backend.open(db_path, &mut updating) {
         Ok(source) => source,
         Err(err) => {
             let _ = replies.send(Reply::OpenFailed(format!("{err:#}")));

@@ -21,7 +21,7 @@ use spallcast_app::source::Backend;
 fn store_backend_reads_plant_attention_history_and_spectra() {
     let fx = build_fixture();
     let backend = StoreBackend::with_analyzer(Arc::new(FixtureAnalyzer));
-    let mut source = backend.open(&fx.db).unwrap();
+    let mut source = backend.open(&fx.db, &mut |_| {}).unwrap();
     let key = BearingKey {
         machine_id: "TP-P1".to_owned(),
         position: "DE".to_owned(),
@@ -105,8 +105,37 @@ fn store_backend_imports_a_route_folder_idempotently() {
     let again = backend.import_route(&fx.db, &folder, &mut |_| {}).unwrap();
     assert_eq!((again.imported, again.already_present), (0, 1));
     let missing = backend
-        .open(&fx.dir.path().join("nope.sqlite"))
+        .open(&fx.dir.path().join("nope.sqlite"), &mut |_| {})
         .err()
         .unwrap();
     assert!(format!("{missing:#}").contains("nope.sqlite"));
+}
+
+/// Opening a database through the window's own backend brings it up to date before the window reads
+/// it (issue: re-analysis when a database is opened, with progress): readings analysed by another
+/// analyzer version are analysed again with the pipeline's analyzer, and the progress says so.
+#[test]
+fn default_backend_reanalyses_stale_readings_when_it_opens_a_database() {
+    let fx = build_fixture();
+    let version_of = |id: i64| {
+        let store = spallcast_store::Store::open_existing(&fx.db).unwrap();
+        store.analysis(id).unwrap().unwrap().version
+    };
+    assert_eq!(version_of(fx.de_readings[0]), "window-test-1");
+    let backend = spallcast_app::default_backend();
+    let mut seen = Vec::new();
+    let mut source = backend.open(&fx.db, &mut |p| seen.push(p)).unwrap();
+    let reanalysing: Vec<_> = seen
+        .iter()
+        .filter(|p| p.what.starts_with("re-analysing"))
+        .collect();
+    // Four DE and two NDE readings, all from the fixture's analyzer.
+    assert!(
+        reanalysing.iter().any(|p| p.total == 6 && p.done == 6),
+        "progress seen: {seen:?}"
+    );
+    for id in &fx.de_readings {
+        assert_eq!(version_of(*id), spallcast_pipeline::ANALYZER_VERSION);
+    }
+    assert!(source.plant().is_ok());
 }

@@ -12,7 +12,6 @@
 
 use std::collections::BTreeMap;
 
-use anyhow::Context as _;
 use chrono::{DateTime, TimeZone as _, Utc};
 use serde::Serialize;
 use spallcast_analysis::Diagnosis;
@@ -26,6 +25,8 @@ use spallcast_analysis::stage::{
 };
 use spallcast_model::units::unix_s_of_date as date_s;
 use spallcast_store::{BearingState, LifeInfo, ReadingMeta, Store};
+
+use crate::error::{Doing as _, PipelineError, Result};
 
 /// Version of the stage logic recorded with every stored call.
 pub const STAGE_VERSION: &str = "spallcast-stage-1";
@@ -106,10 +107,10 @@ fn to_s(t: DateTime<Utc>) -> f64 {
 fn reading_indicators(
     store: &Store,
     reading: &ReadingMeta,
-) -> anyhow::Result<Result<ReadingIndicators, String>> {
+) -> Result<Result<ReadingIndicators, String>> {
     let Some(record) = store
         .analysis(reading.id)
-        .with_context(|| format!("loading the analysis of reading {}", reading.id))?
+        .doing(|| format!("loading the analysis of reading {}", reading.id))?
     else {
         return Ok(Err("not analysed".to_owned()));
     };
@@ -132,10 +133,10 @@ pub fn assess_position(
     store: &Store,
     state: &BearingState,
     options: &StageOptions,
-) -> anyhow::Result<Vec<LifeAssessment>> {
+) -> Result<Vec<LifeAssessment>> {
     let lives = store
         .lives_with_readings(state.position_id)
-        .with_context(|| format!("loading the lives of {} {}", state.machine, state.position))?;
+        .doing(|| format!("loading the lives of {} {}", state.machine, state.position))?;
     let mut out = Vec::with_capacity(lives.len());
     for life in lives {
         let mut by_point: BTreeMap<String, Vec<&ReadingMeta>> = BTreeMap::new();
@@ -290,8 +291,10 @@ pub struct AssessReport {
 /// Assesses every bearing position and life in the store and writes each reading's stage call (with
 /// its evidence and the forecast at that reading) into the stage-call table, one transaction per
 /// bearing position.
-pub fn assess_store(store: &mut Store, options: &StageOptions) -> anyhow::Result<AssessReport> {
-    let states = store.latest_states().context("listing bearing positions")?;
+pub fn assess_store(store: &mut Store, options: &StageOptions) -> Result<AssessReport> {
+    let states = store
+        .latest_states()
+        .doing(|| "listing bearing positions".to_owned())?;
     let mut report = AssessReport::default();
     for state in &states {
         let lives = assess_position(store, state, options)?;
@@ -314,7 +317,7 @@ pub fn store_position_calls(
     store: &mut Store,
     state: &BearingState,
     lives: &[LifeAssessment],
-) -> anyhow::Result<usize> {
+) -> Result<usize> {
     let mut calls = Vec::new();
     let mut skipped = 0;
     for life in lives {
@@ -322,8 +325,11 @@ pub fn store_position_calls(
             skipped += p.skipped.len();
             for ((id, call), forecast) in p.reading_ids.iter().zip(&p.calls).zip(&p.forecasts) {
                 let record = StageRecord::new(p.point.clone(), call.clone(), forecast.clone());
-                let evidence = serde_json::to_value(&record)
-                    .with_context(|| format!("encoding the stage record of reading {id}"))?;
+                let evidence =
+                    serde_json::to_value(&record).map_err(|source| PipelineError::Encode {
+                        reading_id: *id,
+                        source,
+                    })?;
                 calls.push(spallcast_store::NewStageCall {
                     reading_id: *id,
                     stage: call.stage,
@@ -332,14 +338,12 @@ pub fn store_position_calls(
             }
         }
     }
-    store
-        .put_stage_calls(&calls, STAGE_VERSION)
-        .with_context(|| {
-            format!(
-                "storing the stage calls of {} {}",
-                state.machine, state.position
-            )
-        })?;
+    store.put_stage_calls(&calls, STAGE_VERSION).doing(|| {
+        format!(
+            "storing the stage calls of {} {}",
+            state.machine, state.position
+        )
+    })?;
     Ok(skipped)
 }
 
@@ -359,17 +363,19 @@ pub fn complete_stage_calls(
     store: &mut Store,
     options: &StageOptions,
     progress: &mut dyn FnMut(usize, usize),
-) -> anyhow::Result<CompleteReport> {
+) -> Result<CompleteReport> {
     let stale: std::collections::HashSet<i64> = store
         .positions_with_stale_calls(STAGE_VERSION)
-        .context("finding positions with missing stage calls")?
+        .doing(|| "finding positions with missing stage calls".to_owned())?
         .into_iter()
         .collect();
     let mut report = CompleteReport::default();
     if stale.is_empty() {
         return Ok(report);
     }
-    let states = store.latest_states().context("listing bearing positions")?;
+    let states = store
+        .latest_states()
+        .doing(|| "listing bearing positions".to_owned())?;
     let total = stale.len();
     progress(0, total);
     for state in states.iter().filter(|s| stale.contains(&s.position_id)) {
@@ -387,11 +393,10 @@ pub fn complete_stage_calls(
 }
 
 /// Summaries of every position, most urgent first, computed without writing.
-pub fn bearing_summaries(
-    store: &Store,
-    options: &StageOptions,
-) -> anyhow::Result<Vec<BearingSummary>> {
-    let states = store.latest_states().context("listing bearing positions")?;
+pub fn bearing_summaries(store: &Store, options: &StageOptions) -> Result<Vec<BearingSummary>> {
+    let states = store
+        .latest_states()
+        .doing(|| "listing bearing positions".to_owned())?;
     let mut out = Vec::with_capacity(states.len());
     for state in &states {
         let lives = assess_position(store, state, options)?;

@@ -6,11 +6,12 @@ use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 use std::time::Instant;
 
-use anyhow::{Context, Result};
 use spallcast_simulate::{PLANT_TOML, SCENARIO_TOML, dated_demo, generate_demo_routes_from_str};
 use spallcast_store::{PlantFile, RejectedFile, Store};
 
 use crate::SpallcastAnalyzer;
+use crate::error::{Doing as _, PipelineError, Result};
+use crate::update::{Progress, import_and_assess};
 
 /// What [`create_demo_database`] did.
 #[derive(Debug, Clone)]
@@ -75,54 +76,74 @@ pub fn create_demo_database(
 ) -> Result<DemoReport> {
     if let Some(parent) = db.parent().filter(|p| !p.as_os_str().is_empty()) {
         std::fs::create_dir_all(parent)
-            .with_context(|| format!("cannot create the folder {}", parent.display()))?;
+            .doing(|| format!("cannot create the folder {}", parent.display()))?;
     }
     let partial = sibling(db, ".partial");
     remove_db_files(&partial)?;
 
     let started = Instant::now();
     progress("simulating route days", 0, 1);
-    let routes =
-        tempfile::tempdir().context("cannot create a temporary folder for the demo routes")?;
+    let routes = tempfile::tempdir()
+        .doing(|| "cannot create a temporary folder for the demo routes".to_owned())?;
     // Dated relative to today: the last route day falls in the week before, the outages ahead.
     let today = chrono::Local::now().date_naive();
     let dated = dated_demo(PLANT_TOML, SCENARIO_TOML, today)
-        .context("dating the demo plant relative to today failed")?;
+        .doing(|| "dating the demo plant relative to today failed".to_owned())?;
     let demo =
         generate_demo_routes_from_str(&dated.plant_toml, &dated.scenario_toml, routes.path())
-            .context("simulating the demo plant's route days failed")?;
+            .doing(|| "simulating the demo plant's route days failed".to_owned())?;
     progress("simulating route days", 1, 1);
     let generate_secs = started.elapsed().as_secs_f64();
 
     let started = Instant::now();
     let plant = PlantFile::parse(&dated.plant_toml, Path::new("demo-plant/plant.toml"))
-        .context("the demo plant file is invalid")?;
+        .doing(|| "the demo plant file is invalid".to_owned())?;
     let mut readings = 0;
     let mut rejected = Vec::new();
     {
         let mut store = Store::open(&partial)?;
         store.apply_plant(&plant)?;
         let total = demo.route_dirs.len();
-        for (i, dir) in demo.route_dirs.iter().enumerate() {
-            progress("importing route days", i, total);
-            let summary = store.import_route(dir, &SpallcastAnalyzer, &mut |_, _| {})?;
+        let mut last_folder = None;
+        let mut assessing = false;
+        let outcome = import_and_assess(
+            &mut store,
+            &demo.route_dirs,
+            &SpallcastAnalyzer,
+            &spallcast_analysis::stage::StageOptions::default(),
+            &mut |p| match p {
+                Progress::Importing { folder, .. } if last_folder != Some(folder) => {
+                    last_folder = Some(folder);
+                    progress("importing route days", folder, total);
+                }
+                Progress::Assessing { done: 0, .. } if !assessing => {
+                    assessing = true;
+                    progress("importing route days", total, total);
+                    progress("assessing stages", 0, 1);
+                }
+                _ => {}
+            },
+        )?;
+        if !assessing {
+            progress("importing route days", total, total);
+            progress("assessing stages", 0, 1);
+        }
+        for summary in outcome.summaries {
             readings += summary.new_readings;
             rejected.extend(summary.rejected);
         }
-        progress("importing route days", total, total);
-        progress("assessing stages", 0, 1);
-        crate::assess::assess_store(
-            &mut store,
-            &spallcast_analysis::stage::StageOptions::default(),
-        )
-        .context("assessing the demo plant's bearing stages failed")?;
+        // A demo database is complete or not made: a failed assessment fails it.
+        outcome.assessment.map_err(|e| PipelineError::Context {
+            doing: "assessing the demo plant's bearing stages failed".to_owned(),
+            source: Box::new(e),
+        })?;
         store.mark_demo()?;
         progress("assessing stages", 1, 1);
     }
     let import_secs = started.elapsed().as_secs_f64();
 
     remove_db_files(db)?;
-    std::fs::rename(&partial, db).with_context(|| {
+    std::fs::rename(&partial, db).doing(|| {
         format!(
             "cannot move the new demo database into place: {}",
             db.display()
@@ -130,7 +151,7 @@ pub fn create_demo_database(
     })?;
     let truth_csv = sibling(db, ".truth.csv");
     std::fs::write(&truth_csv, truth_table(&demo.truth))
-        .with_context(|| format!("cannot write the simulator truth: {}", truth_csv.display()))?;
+        .doing(|| format!("cannot write the simulator truth: {}", truth_csv.display()))?;
     Ok(DemoReport {
         db: db.to_path_buf(),
         truth_csv,
@@ -155,7 +176,7 @@ fn remove_db_files(db: &Path) -> Result<()> {
         match std::fs::remove_file(&p) {
             Ok(()) => {}
             Err(e) if e.kind() == std::io::ErrorKind::NotFound => {}
-            Err(e) => return Err(e).with_context(|| format!("cannot remove {}", p.display())),
+            Err(e) => return Err(e).doing(|| format!("cannot remove {}", p.display())),
         }
     }
     Ok(())

@@ -3,6 +3,8 @@ use std::io::IsTerminal as _;
 use std::path::PathBuf;
 use std::process::ExitCode;
 
+use spallcast_analysis::stage::StageOptions;
+use spallcast_pipeline::update::{Progress, import_and_assess};
 use spallcast_store::{ImportSummary, ReadingAnalyzer, Store};
 
 /// Arguments of `spallcast import`.
@@ -48,29 +50,51 @@ pub fn run(args: &ImportArgs, analyzer: &dyn ReadingAnalyzer) -> anyhow::Result<
         }
         bar
     };
-    let summary = store.import_route(&args.dir, analyzer, &mut |done, total| {
-        bar.set_length(total as u64);
-        bar.set_position(done as u64);
-    })?;
-    bar.finish_and_clear();
     // Stage calls and forecasts follow the new readings at once, so `bearings`, the window and the
     // planner see them; calls missing after an interrupted earlier run are completed too (a re-import
-    // with nothing new still does that). A failure here does not undo the import: it is reported and
-    // the next command that reads the calls tries again.
-    match crate::refresh::refresh(&mut store, args.json) {
-        Ok(report) if !args.json && report.positions > 0 => eprintln!(
-            "stage calls updated: {} readings of {} bearing positions",
-            report.calls_written, report.positions
-        ),
-        Ok(_) => {}
+    // with nothing new still does that). The pipeline's policy: a failed assessment does not undo the
+    // import; it is reported and the next command that reads the calls tries again.
+    let outcome = import_and_assess(
+        &mut store,
+        std::slice::from_ref(&args.dir),
+        analyzer,
+        &StageOptions::default(),
+        &mut |p| match p {
+            Progress::Importing { done, total, .. } => {
+                bar.set_length(total as u64);
+                bar.set_position(done as u64);
+            }
+            other => {
+                bar.finish_and_clear();
+                crate::refresh::print_progress(other, &analyzer.version(), args.json);
+            }
+        },
+    )?;
+    bar.finish_and_clear();
+    match &outcome.assessment {
+        Ok(report) => {
+            crate::refresh::finish(&store, report, args.json);
+            if !args.json && report.calls.positions > 0 {
+                eprintln!(
+                    "stage calls updated: {} readings of {} bearing positions",
+                    report.calls.calls_written, report.calls.positions
+                );
+            }
+        }
         Err(err) => {
-            eprintln!("spallcast: warning: the stage assessment after the import failed: {err:#}");
+            eprintln!(
+                "spallcast: warning: the stage assessment after the import failed: {}",
+                err.full_message()
+            );
         }
     }
+    let Some(summary) = outcome.summaries.first() else {
+        anyhow::bail!("the import of {} returned no summary", args.dir.display());
+    };
     if args.json {
-        println!("{}", serde_json::to_string_pretty(&summary)?);
+        println!("{}", serde_json::to_string_pretty(summary)?);
     } else {
-        print_summary(&summary);
+        print_summary(summary);
     }
     Ok(ExitCode::SUCCESS)
 }

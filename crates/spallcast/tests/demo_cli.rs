@@ -155,7 +155,7 @@ fn every_view_and_export_gives_each_demo_bearing_the_same_call() {
     // The window's data layer, on the same database.
     let backend = spallcast_app::default_backend();
     let mut source = backend
-        .open(&db_path)
+        .open(&db_path, &mut |_| {})
         .expect("the window opens the database");
     let tree = source.plant().expect("the plant tree");
     let attention = source.attention().expect("the attention list");

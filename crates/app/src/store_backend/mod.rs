@@ -23,7 +23,8 @@ use spallcast_store::{ReadingAnalyzer, Store};
 use crate::model::{
     Annotation, AreaNode, Attention, BearingHistory, BearingKey, BearingNode, ChangedBearing,
     DueBearing, ForecastView, ImportProgress, ImportSummary, MachineNode, NoteView, PlantTree,
-    ReadingId, ReadingSpectra, ReadingSummary, RejectedFile, StageCallView, Waveform,
+    ReadingId, ReadingSpectra, ReadingSummary, RejectedFile, StageCallView, UpdateProgress,
+    Waveform,
 };
 use crate::source::{Backend, PlantSource};
 
@@ -33,19 +34,33 @@ pub type RouteImporter = dyn Fn(&Path, &Path, &mut dyn FnMut(ImportProgress)) ->
     + Send
     + Sync;
 
+/// What is done to a database as it is opened, before the window reads it (re-analysis of stale
+/// readings, completion of stale stage calls), with progress.
+pub type OpenUpdater =
+    dyn Fn(&mut Store, &mut dyn FnMut(UpdateProgress)) -> anyhow::Result<()> + Send + Sync;
+
 /// Store plus analysis crate.
 pub struct StoreBackend {
     importer: Arc<RouteImporter>,
+    updater: Option<Arc<OpenUpdater>>,
     engine: Mutex<SpectrumEngine>,
 }
 
 impl StoreBackend {
-    /// A backend whose imports call `importer`.
+    /// A backend whose imports call `importer`; databases are opened as they are.
     pub fn new(importer: Arc<RouteImporter>) -> Self {
         Self {
             importer,
+            updater: None,
             engine: Mutex::new(SpectrumEngine::new()),
         }
+    }
+
+    /// The same backend, bringing each database up to date with `updater` as it is opened.
+    #[must_use]
+    pub fn with_updater(mut self, updater: Arc<OpenUpdater>) -> Self {
+        self.updater = Some(updater);
+        self
     }
 
     /// A backend that imports with the store's own route import and `analyzer`, and nothing after it.
@@ -77,6 +92,7 @@ pub fn summary_view(summary: &spallcast_store::ImportSummary) -> ImportSummary {
     ImportSummary {
         imported: summary.new_readings,
         already_present: summary.duplicates,
+        assessment_failed: None,
         rejected: summary
             .rejected
             .iter()
@@ -89,8 +105,16 @@ pub fn summary_view(summary: &spallcast_store::ImportSummary) -> ImportSummary {
 }
 
 impl Backend for StoreBackend {
-    fn open(&self, db_path: &Path) -> anyhow::Result<Box<dyn PlantSource>> {
-        let store = Store::open_existing(db_path)?;
+    fn open(
+        &self,
+        db_path: &Path,
+        progress: &mut dyn FnMut(UpdateProgress),
+    ) -> anyhow::Result<Box<dyn PlantSource>> {
+        let mut store = Store::open_existing(db_path)?;
+        if let Some(update) = &self.updater {
+            update(&mut store, progress)
+                .with_context(|| format!("bringing {} up to date failed", db_path.display()))?;
+        }
         // The baseline for `changed_elsewhere`: changes committed from now on by other connections.
         let data_version = Some(store.data_version()?);
         Ok(Box::new(StoreSource {
