@@ -65,10 +65,7 @@ pub(crate) fn damage_index(rel: &RelativeIndicators, tones_known: bool) -> f64 {
     if tones_known && let Some(floor) = rel.noise_floor_db {
         return floor.max(0.0);
     }
-    [rel.accel_rms_db, rel.resonance_band_db, rel.noise_floor_db]
-        .into_iter()
-        .flatten()
-        .fold(0.0_f64, f64::max)
+    rel.largest_damage_rise_db()
 }
 
 /// The strongest present tone: (location index, evidence).

@@ -1,6 +1,6 @@
 //! Stage indicators taken from a [`Diagnosis`].
 
-use super::indicators::{ReadingIndicators, ToneEvidence};
+use super::indicators::{INDICATORS, ReadingIndicators, ToneEvidence};
 use crate::{Diagnosis, FaultKind, Zone};
 
 /// Whether the defect tones of a diagnosis are used.
@@ -12,7 +12,8 @@ pub enum ToneUse {
     Ignore,
 }
 
-fn zone_number(z: Zone) -> u8 {
+/// ISO 20816-3 zone A..D as 1..=4.
+pub(super) fn zone_number(z: Zone) -> u8 {
     match z {
         Zone::A => 1,
         Zone::B => 2,
@@ -21,10 +22,24 @@ fn zone_number(z: Zone) -> u8 {
     }
 }
 
+/// A finite value, else `None`.
+pub(super) fn finite(v: f64) -> Option<f64> {
+    v.is_finite().then_some(v)
+}
+
+/// RMS of one of the diagnosis' named analysis bands, g, when the recording reaches it.
+pub(super) fn band(d: &Diagnosis, name: &str) -> Option<f64> {
+    d.stage_indicators
+        .bands
+        .iter()
+        .find(|b| b.name == name && b.available)
+        .map(|b| b.rms_g)
+}
+
 /// RMS over the bearing-resonance region: the diagnosis' `bearing_resonance` (0.5-2 kHz) and
 /// `high_frequency` (2-20 kHz) bands together, since bearing and housing resonances lie anywhere in it.
-fn resonance_region(band: &dyn Fn(&str) -> Option<f64>) -> Option<f64> {
-    match (band("bearing_resonance"), band("high_frequency")) {
+pub(super) fn resonance_region(d: &Diagnosis) -> Option<f64> {
+    match (band(d, "bearing_resonance"), band(d, "high_frequency")) {
         (None, None) => None,
         (a, b) => Some((a.unwrap_or(0.0).powi(2) + b.unwrap_or(0.0).powi(2)).sqrt()),
     }
@@ -33,17 +48,11 @@ fn resonance_region(band: &dyn Fn(&str) -> Option<f64>) -> Option<f64> {
 impl ReadingIndicators {
     /// The stage indicators of one diagnosed reading.
     ///
-    /// The high band is the diagnosis' `ultrasonic` band when the recording reaches it (else `None`);
+    /// Each scalar indicator is read by its row of [`INDICATORS`]: the high band is the diagnosis'
+    /// `ultrasonic` band when the recording reaches it (else `None`);
     /// the resonance region is its `bearing_resonance` and `high_frequency` bands together (0.5 kHz
     /// up to 20 kHz or the recording's limit); the 1x amplitude is the 1x velocity RMS, mm/s.
     pub fn from_diagnosis(d: &Diagnosis, tones: ToneUse) -> ReadingIndicators {
-        let s = &d.stage_indicators;
-        let band = |name: &str| {
-            s.bands
-                .iter()
-                .find(|b| b.name == name && b.available)
-                .map(|b| b.rms_g)
-        };
         // Envelope tones count only for the location the diagnosis names: the band search looks at
         // many bands, and the location call's margin and band corroboration are what separate a defect
         // family from a chance line ("unclear" and "none" leave the stage to the other indicators).
@@ -62,19 +71,14 @@ impl ReadingIndicators {
                     })
             })),
         };
-        let finite = |v: f64| v.is_finite().then_some(v);
-        ReadingIndicators {
-            accel_rms_g: finite(d.indicators.accel_rms_g),
-            crest_factor: finite(s.crest_factor),
-            kurtosis: finite(s.kurtosis),
-            velocity_rms_mm_s: finite(s.velocity_rms_mm_s),
-            iso_zone: Some(zone_number(s.iso20816_zone)),
-            high_band_rms_g: band("ultrasonic"),
-            resonance_band_rms_g: resonance_region(&band),
-            noise_floor_g: finite(s.noise_floor_g),
-            one_x_amplitude: finite(s.one_x_velocity_rms_mm_s),
+        let mut out = ReadingIndicators {
             tones,
             envelope_band_hz: Some(d.demodulation_band_hz),
+            ..ReadingIndicators::default()
+        };
+        for def in INDICATORS {
+            (def.set)(&mut out, (def.from_diagnosis)(d));
         }
+        out
     }
 }

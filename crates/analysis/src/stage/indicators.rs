@@ -101,6 +101,167 @@ pub mod keys {
     }
 }
 
+/// How an indicator is compared with its baseline.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum DbForm {
+    /// An amplitude: 20·log10 of the ratio.
+    Amplitude,
+    /// A ratio of powers (kurtosis): 10·log10 of the ratio.
+    Power,
+}
+
+/// One scalar stage indicator: the single place that says how it is stored, read from a diagnosis,
+/// put in the baseline and compared with it. [`ReadingIndicators::to_scalars`],
+/// [`ReadingIndicators::from_scalars`], [`ReadingIndicators::from_diagnosis`],
+/// [`Baseline::from_readings`] and [`RelativeIndicators::new`] all walk [`INDICATORS`], so a new
+/// indicator is its struct field here plus one row (and, when the window should trend it, one line of
+/// [`keys::TRENDED`]).
+#[derive(Clone, Copy)]
+pub struct IndicatorDef {
+    /// Stored scalar name (see [`keys`]).
+    pub key: &'static str,
+    /// Reads it from a reading's indicators.
+    pub get: fn(&ReadingIndicators) -> Option<f64>,
+    /// Writes it into a reading's indicators (a baseline median, a stored scalar).
+    pub set: fn(&mut ReadingIndicators, Option<f64>),
+    /// Takes it from a diagnosis (see `from_diagnosis.rs` for the shared helpers).
+    pub from_diagnosis: fn(&crate::Diagnosis) -> Option<f64>,
+    /// Its form against the baseline, with the [`RelativeIndicators`] field it fills.
+    pub relative: Option<RelativeForm>,
+    /// Whether its rise counts in the damage index when the fault factors are unknown.
+    pub in_damage_index: bool,
+}
+
+impl std::fmt::Debug for IndicatorDef {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("IndicatorDef")
+            .field("key", &self.key)
+            .finish_non_exhaustive()
+    }
+}
+
+/// How one indicator appears in [`RelativeIndicators`].
+#[derive(Debug, Clone, Copy)]
+pub struct RelativeForm {
+    /// 20·log10 or 10·log10.
+    pub form: DbForm,
+    /// Reads its field.
+    pub get: fn(&RelativeIndicators) -> Option<f64>,
+    /// Writes its field.
+    pub set: fn(&mut RelativeIndicators, Option<f64>),
+}
+
+use super::from_diagnosis as fd;
+
+/// Every scalar stage indicator (the tone evidence and the demodulated band are structured and handled
+/// on their own).
+pub const INDICATORS: &[IndicatorDef] = &[
+    IndicatorDef {
+        key: keys::ACCEL_RMS_G,
+        get: |r| r.accel_rms_g,
+        set: |r, v| r.accel_rms_g = v,
+        from_diagnosis: |d| fd::finite(d.indicators.accel_rms_g),
+        relative: Some(RelativeForm {
+            form: DbForm::Amplitude,
+            get: |x| x.accel_rms_db,
+            set: |x, v| x.accel_rms_db = v,
+        }),
+        in_damage_index: true,
+    },
+    IndicatorDef {
+        key: keys::CREST_FACTOR,
+        get: |r| r.crest_factor,
+        set: |r, v| r.crest_factor = v,
+        from_diagnosis: |d| fd::finite(d.stage_indicators.crest_factor),
+        relative: Some(RelativeForm {
+            form: DbForm::Amplitude,
+            get: |x| x.crest_factor_db,
+            set: |x, v| x.crest_factor_db = v,
+        }),
+        in_damage_index: false,
+    },
+    IndicatorDef {
+        key: keys::KURTOSIS,
+        get: |r| r.kurtosis,
+        set: |r, v| r.kurtosis = v,
+        from_diagnosis: |d| fd::finite(d.stage_indicators.kurtosis),
+        relative: Some(RelativeForm {
+            form: DbForm::Power,
+            get: |x| x.kurtosis_db,
+            set: |x, v| x.kurtosis_db = v,
+        }),
+        in_damage_index: false,
+    },
+    IndicatorDef {
+        key: keys::VELOCITY_RMS_MM_S,
+        get: |r| r.velocity_rms_mm_s,
+        set: |r, v| r.velocity_rms_mm_s = v,
+        from_diagnosis: |d| fd::finite(d.stage_indicators.velocity_rms_mm_s),
+        relative: Some(RelativeForm {
+            form: DbForm::Amplitude,
+            get: |x| x.velocity_rms_db,
+            set: |x, v| x.velocity_rms_db = v,
+        }),
+        in_damage_index: false,
+    },
+    IndicatorDef {
+        key: keys::ISO_ZONE,
+        get: |r| r.iso_zone.map(f64::from),
+        set: |r, v| r.iso_zone = v.map(|z| z.clamp(1.0, 4.0).round() as u8),
+        from_diagnosis: |d| Some(f64::from(fd::zone_number(d.stage_indicators.iso20816_zone))),
+        relative: None,
+        in_damage_index: false,
+    },
+    IndicatorDef {
+        key: keys::HIGH_BAND_RMS_G,
+        get: |r| r.high_band_rms_g,
+        set: |r, v| r.high_band_rms_g = v,
+        from_diagnosis: |d| fd::band(d, "ultrasonic"),
+        relative: Some(RelativeForm {
+            form: DbForm::Amplitude,
+            get: |x| x.high_band_db,
+            set: |x, v| x.high_band_db = v,
+        }),
+        in_damage_index: false,
+    },
+    IndicatorDef {
+        key: keys::RESONANCE_BAND_RMS_G,
+        get: |r| r.resonance_band_rms_g,
+        set: |r, v| r.resonance_band_rms_g = v,
+        from_diagnosis: fd::resonance_region,
+        relative: Some(RelativeForm {
+            form: DbForm::Amplitude,
+            get: |x| x.resonance_band_db,
+            set: |x, v| x.resonance_band_db = v,
+        }),
+        in_damage_index: true,
+    },
+    IndicatorDef {
+        key: keys::NOISE_FLOOR_G,
+        get: |r| r.noise_floor_g,
+        set: |r, v| r.noise_floor_g = v,
+        from_diagnosis: |d| fd::finite(d.stage_indicators.noise_floor_g),
+        relative: Some(RelativeForm {
+            form: DbForm::Amplitude,
+            get: |x| x.noise_floor_db,
+            set: |x, v| x.noise_floor_db = v,
+        }),
+        in_damage_index: true,
+    },
+    IndicatorDef {
+        key: keys::ONE_X_AMPLITUDE,
+        get: |r| r.one_x_amplitude,
+        set: |r, v| r.one_x_amplitude = v,
+        from_diagnosis: |d| fd::finite(d.stage_indicators.one_x_velocity_rms_mm_s),
+        relative: Some(RelativeForm {
+            form: DbForm::Amplitude,
+            get: |x| x.one_x_db,
+            set: |x, v| x.one_x_db = v,
+        }),
+        in_damage_index: false,
+    },
+];
+
 fn tone_key(location: Location, field: &str) -> String {
     format!("stage.{}.{field}", location.key())
 }
@@ -115,15 +276,9 @@ impl ReadingIndicators {
                 out.insert(k.to_owned(), v);
             }
         };
-        put(keys::ACCEL_RMS_G, self.accel_rms_g);
-        put(keys::CREST_FACTOR, self.crest_factor);
-        put(keys::KURTOSIS, self.kurtosis);
-        put(keys::VELOCITY_RMS_MM_S, self.velocity_rms_mm_s);
-        put(keys::ISO_ZONE, self.iso_zone.map(f64::from));
-        put(keys::HIGH_BAND_RMS_G, self.high_band_rms_g);
-        put(keys::RESONANCE_BAND_RMS_G, self.resonance_band_rms_g);
-        put(keys::NOISE_FLOOR_G, self.noise_floor_g);
-        put(keys::ONE_X_AMPLITUDE, self.one_x_amplitude);
+        for def in INDICATORS {
+            put(def.key, (def.get)(self));
+        }
         put(
             keys::ENVELOPE_BAND_LO_HZ,
             self.envelope_band_hz.map(|b| b[0]),
@@ -166,21 +321,17 @@ impl ReadingIndicators {
                 spectrum_sidebands: count(tone_key(loc, "spectrum_sidebands")),
             })
         });
-        ReadingIndicators {
-            accel_rms_g: get(keys::ACCEL_RMS_G),
-            crest_factor: get(keys::CREST_FACTOR),
-            kurtosis: get(keys::KURTOSIS),
-            velocity_rms_mm_s: get(keys::VELOCITY_RMS_MM_S),
-            iso_zone: get(keys::ISO_ZONE).map(|z| z.clamp(1.0, 4.0).round() as u8),
-            high_band_rms_g: get(keys::HIGH_BAND_RMS_G),
-            resonance_band_rms_g: get(keys::RESONANCE_BAND_RMS_G),
-            noise_floor_g: get(keys::NOISE_FLOOR_G),
-            one_x_amplitude: get(keys::ONE_X_AMPLITUDE),
+        let mut out = ReadingIndicators {
             tones,
             envelope_band_hz: get(keys::ENVELOPE_BAND_LO_HZ)
                 .zip(get(keys::ENVELOPE_BAND_HI_HZ))
                 .map(|(lo, hi)| [lo, hi]),
+            ..ReadingIndicators::default()
+        };
+        for def in INDICATORS {
+            (def.set)(&mut out, get(def.key));
         }
+        out
     }
 
     /// Tone evidence for one kinematic location, if known.
@@ -237,20 +388,16 @@ impl Baseline {
                 })
             })
         };
+        let mut indicators = ReadingIndicators {
+            tones,
+            envelope_band_hz: None,
+            ..ReadingIndicators::default()
+        };
+        for def in INDICATORS {
+            (def.set)(&mut indicators, med(&def.get));
+        }
         Baseline {
-            indicators: ReadingIndicators {
-                accel_rms_g: med(&|r| r.accel_rms_g),
-                crest_factor: med(&|r| r.crest_factor),
-                kurtosis: med(&|r| r.kurtosis),
-                velocity_rms_mm_s: med(&|r| r.velocity_rms_mm_s),
-                iso_zone: med(&|r| r.iso_zone.map(f64::from)).map(|z| z.round() as u8),
-                high_band_rms_g: med(&|r| r.high_band_rms_g),
-                resonance_band_rms_g: med(&|r| r.resonance_band_rms_g),
-                noise_floor_g: med(&|r| r.noise_floor_g),
-                one_x_amplitude: med(&|r| r.one_x_amplitude),
-                tones,
-                envelope_band_hz: None,
-            },
+            indicators,
             readings: readings.len(),
         }
     }
@@ -291,16 +438,30 @@ pub struct RelativeIndicators {
 impl RelativeIndicators {
     /// Compares `r` with `base`.
     pub fn new(r: &ReadingIndicators, base: &ReadingIndicators) -> RelativeIndicators {
-        RelativeIndicators {
-            accel_rms_db: db_over(r.accel_rms_g, base.accel_rms_g),
-            crest_factor_db: db_over(r.crest_factor, base.crest_factor),
-            kurtosis_db: db_over(r.kurtosis, base.kurtosis).map(|d| d / 2.0),
-            velocity_rms_db: db_over(r.velocity_rms_mm_s, base.velocity_rms_mm_s),
-            high_band_db: db_over(r.high_band_rms_g, base.high_band_rms_g),
-            resonance_band_db: db_over(r.resonance_band_rms_g, base.resonance_band_rms_g),
-            noise_floor_db: db_over(r.noise_floor_g, base.noise_floor_g),
-            one_x_db: db_over(r.one_x_amplitude, base.one_x_amplitude),
+        let mut out = RelativeIndicators::default();
+        for def in INDICATORS {
+            if let Some(RelativeForm { form, set, .. }) = def.relative {
+                let db = db_over((def.get)(r), (def.get)(base));
+                set(
+                    &mut out,
+                    match form {
+                        DbForm::Amplitude => db,
+                        DbForm::Power => db.map(|d| d / 2.0),
+                    },
+                );
+            }
         }
+        out
+    }
+
+    /// The largest rise over baseline of the indicators that count in the damage index without fault
+    /// factors ([`IndicatorDef::in_damage_index`]), dB; 0 when none can be compared.
+    pub fn largest_damage_rise_db(&self) -> f64 {
+        INDICATORS
+            .iter()
+            .filter(|d| d.in_damage_index)
+            .filter_map(|d| d.relative.and_then(|rf| (rf.get)(self)))
+            .fold(0.0_f64, f64::max)
     }
 }
 

@@ -26,7 +26,8 @@ use serde::{Deserialize, Serialize};
 
 pub use from_diagnosis::ToneUse;
 pub use indicators::{
-    Baseline, Location, ReadingIndicators, RelativeIndicators, ToneEvidence, db_over, keys, median,
+    Baseline, DbForm, INDICATORS, IndicatorDef, Location, ReadingIndicators, RelativeForm,
+    RelativeIndicators, ToneEvidence, db_over, keys, median,
 };
 
 /// One reading of a bearing life, as the assessment sees it.
