@@ -49,9 +49,10 @@ pub mod window;
 pub use bands::{BandEnergy, BandScale, BandSpec, band_energies, default_bands};
 pub use diagnose::rules as location_rules;
 pub use diagnose::{
-    AccelUnit, BandChoice, DiagnoseOptions, Diagnosis, DisplayUnits, DisplayValues, Finding,
-    Indicators, LocationCall, MIN_SAMPLES, StageIndicators, VelocityUnit, acceleration_spectrum,
-    diagnose, diagnose_with, envelope_spectrum, stage_indicators_flat, velocity_spectrum,
+    ANALYSIS_VERSION, AccelUnit, BandChoice, DiagnoseOptions, Diagnosis, DisplayUnits,
+    DisplayValues, Finding, Indicators, LocationCall, MIN_SAMPLES, StageIndicators, VelocityUnit,
+    acceleration_spectrum, diagnose, diagnose_with, envelope_spectrum, stage_indicators_flat,
+    velocity_spectrum,
 };
 pub use indicators::{MachineGroup, Support, Zone};
 pub use kinematics::{

@@ -7,9 +7,10 @@ use spallcast_analysis::stage::{ReadingIndicators, ToneUse, keys};
 use spallcast_analysis::{DiagnoseOptions, SpectrumEngine, diagnose_with};
 use spallcast_store::{AnalysisInput, AnalysisOutput, ReadingAnalyzer};
 
-/// Version of the analysis recorded beside every stored result. Change it whenever the analysis or the
-/// scalars it produces change: the store then recomputes older results (`Store::reanalyze_stale`).
-pub const ANALYZER_VERSION: &str = "spallcast-analysis-3";
+/// Version of the analysis recorded beside every stored result: the analysis crate's
+/// [`ANALYSIS_VERSION`](spallcast_analysis::ANALYSIS_VERSION), which changes whenever the diagnosis or
+/// the stage indicators change; the store then recomputes older results (`Store::reanalyze_stale`).
+pub const ANALYZER_VERSION: &str = spallcast_analysis::ANALYSIS_VERSION;
 
 thread_local! {
     /// One engine per import thread: its FFT plans and windows are built once, not per reading.
