@@ -144,12 +144,15 @@ pub struct StageIndicators {
     pub crest_factor: f64,
     /// Pearson kurtosis.
     pub kurtosis: f64,
+    /// Impulse factor (peak / mean absolute value); 0 in documents written before it existed.
+    #[serde(default)]
+    pub impulse_factor: f64,
 }
 
 /// Version of the diagnosis document and of the stage indicators taken from it. Change it whenever
 /// either changes (a new indicator, a new field, a changed computation): stored readings of an older
 /// version are then analysed again when a database is opened.
-pub const ANALYSIS_VERSION: &str = "spallcast-analysis-3";
+pub const ANALYSIS_VERSION: &str = "spallcast-analysis-4";
 
 /// Result of [`diagnose`]. Serialises to the stable JSON document.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -407,6 +410,7 @@ pub fn diagnose_with(
         iso20816_zone: indicators.iso20816_zone,
         crest_factor: indicators.crest_factor,
         kurtosis: indicators.kurtosis,
+        impulse_factor: indicators::impulse_factor(&centred),
     };
     let u = options.units;
     let display = DisplayValues {

@@ -119,6 +119,12 @@ fn velocity_sine_gives_iso_zone() {
     );
     assert!((d.stage_indicators.one_x_velocity_rms_mm_s - 4.0).abs() < 0.04);
     assert_eq!(d.indicators.iso20816_zone, Zone::C);
+    // Analytic: a sine's impulse factor is π/2 (mean of the rectified sine 2/π of its peak); the
+    // stage indicators carry it under its stored name.
+    assert!((d.stage_indicators.impulse_factor - std::f64::consts::FRAC_PI_2).abs() < 1e-3);
+    let stage = crate::stage::ReadingIndicators::from_diagnosis(&d, crate::stage::ToneUse::Use);
+    let stored = stage.to_scalars()[crate::stage::keys::IMPULSE_FACTOR];
+    assert!((stored - d.stage_indicators.impulse_factor).abs() < 1e-12);
     let inch = DiagnoseOptions {
         units: DisplayUnits {
             velocity: VelocityUnit::InPerS,

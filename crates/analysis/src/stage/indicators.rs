@@ -30,6 +30,8 @@ pub struct ReadingIndicators {
     pub crest_factor: Option<f64>,
     /// Pearson kurtosis of the acceleration waveform (3 for Gaussian noise).
     pub kurtosis: Option<f64>,
+    /// Impulse factor (peak / mean absolute value) of the acceleration waveform.
+    pub impulse_factor: Option<f64>,
     /// Overall velocity RMS in the ISO 20816-3 band, mm/s.
     pub velocity_rms_mm_s: Option<f64>,
     /// ISO 20816-3 evaluation zone as 1..=4 for A..D.
@@ -61,6 +63,8 @@ pub mod keys {
     pub const CREST_FACTOR: &str = "stage.crest_factor";
     /// Kurtosis.
     pub const KURTOSIS: &str = "stage.kurtosis";
+    /// Impulse factor.
+    pub const IMPULSE_FACTOR: &str = "stage.impulse_factor";
     /// Velocity RMS, mm/s.
     pub const VELOCITY_RMS_MM_S: &str = "stage.velocity_rms_mm_s";
     /// ISO zone 1..4.
@@ -81,7 +85,7 @@ pub mod keys {
     pub const ENVELOPE_BAND_HI_HZ: &str = "stage.envelope_band_hi_hz";
     /// The stage indicators a trend view offers, with their labels, in display order. A new stage
     /// indicator adds its line here.
-    pub const TRENDED: [(&str, &str); 8] = [
+    pub const TRENDED: [(&str, &str); 9] = [
         (HIGH_BAND_RMS_G, "high band RMS"),
         (RESONANCE_BAND_RMS_G, "resonance band RMS"),
         (ACCEL_RMS_G, "acceleration RMS"),
@@ -90,6 +94,7 @@ pub mod keys {
         (CREST_FACTOR, "crest factor"),
         (ONE_X_AMPLITUDE, "1x amplitude"),
         (VELOCITY_RMS_MM_S, "velocity RMS"),
+        (IMPULSE_FACTOR, "impulse factor"),
     ];
 
     /// Acceleration peak, g (trended; not read by the stage logic).
@@ -189,6 +194,18 @@ pub const INDICATORS: &[IndicatorDef] = &[
             form: DbForm::Power,
             get: |x| x.kurtosis_db,
             set: |x, v| x.kurtosis_db = v,
+        }),
+        in_damage_index: false,
+    },
+    IndicatorDef {
+        key: keys::IMPULSE_FACTOR,
+        get: |r| r.impulse_factor,
+        set: |r, v| r.impulse_factor = v,
+        from_diagnosis: |d| fd::finite(d.stage_indicators.impulse_factor).filter(|v| *v > 0.0),
+        relative: Some(RelativeForm {
+            form: DbForm::Amplitude,
+            get: |x| x.impulse_factor_db,
+            set: |x, v| x.impulse_factor_db = v,
         }),
         in_damage_index: false,
     },
@@ -423,6 +440,9 @@ pub struct RelativeIndicators {
     pub crest_factor_db: Option<f64>,
     /// Kurtosis, dB (10·log10) over baseline.
     pub kurtosis_db: Option<f64>,
+    /// Impulse factor, dB over baseline.
+    #[serde(default)]
+    pub impulse_factor_db: Option<f64>,
     /// Velocity RMS, dB over baseline.
     pub velocity_rms_db: Option<f64>,
     /// High / ultrasonic band, dB over baseline.
@@ -475,6 +495,7 @@ mod tests {
             accel_rms_g: Some(0.5),
             crest_factor: Some(4.0),
             kurtosis: Some(3.2),
+            impulse_factor: Some(4.1),
             velocity_rms_mm_s: Some(1.1),
             iso_zone: Some(2),
             high_band_rms_g: None,
@@ -497,6 +518,7 @@ mod tests {
         let s = r.to_scalars();
         assert!(!s.contains_key(keys::HIGH_BAND_RMS_G));
         assert!((s["stage.bpfo.envelope_harmonics"] - 3.0).abs() < 1e-12);
+        assert!((s[keys::IMPULSE_FACTOR] - 4.1).abs() < 1e-12);
         assert_eq!(ReadingIndicators::from_scalars(&s), r);
         // Without the tones flag the tone fields are not invented.
         let mut bare = s.clone();

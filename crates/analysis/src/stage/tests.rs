@@ -9,6 +9,8 @@ fn healthy() -> ReadingIndicators {
         accel_rms_g: Some(0.20),
         crest_factor: Some(3.5),
         kurtosis: Some(3.0),
+        // Gaussian noise: peak / (σ·√(2/π)) for a crest factor of 3.5 (common practice, no source).
+        impulse_factor: Some(4.4),
         velocity_rms_mm_s: Some(1.0),
         iso_zone: Some(1),
         high_band_rms_g: Some(0.010),
