@@ -17,6 +17,7 @@
 
 use serde::{Deserialize, Serialize};
 
+use super::locate::same_lines;
 use super::rules::{ENVELOPE_CAP_MEDIANS, LINE_FACTOR, PRESENT_DB, TONAL_FRACTION};
 use crate::AnalysisError;
 use crate::envelope::{
@@ -48,7 +49,9 @@ pub struct BandChoice {
     pub prewhitened: bool,
     /// Whether strong discrete lines were removed first (automatic, see [`TONAL_FRACTION`]).
     pub lines_removed: bool,
-    /// Other candidate bands in which the same family is the strongest and present.
+    /// Other candidate bands in which the same family is the strongest and present (the outer race and
+    /// the rolling elements count as one family when their combs coincide, see
+    /// [`COMB_OVERLAP`](super::rules::COMB_OVERLAP)).
     pub corroborating_bands: usize,
     /// Plain-language reason.
     pub reason: String,
@@ -249,7 +252,16 @@ pub(crate) fn choose_band(
     let corroborating = per_band
         .iter()
         .enumerate()
-        .filter(|(j, (k, sc))| *j != i && *k == kind && *sc >= PRESENT_DB.value)
+        .filter(|(j, (k, sc))| {
+            *j != i
+                && same_lines(
+                    *k,
+                    freqs.defect_rate_hz(*k),
+                    kind,
+                    freqs.defect_rate_hz(kind),
+                )
+                && *sc >= PRESENT_DB.value
+        })
         .count();
     let reason = format!(
         "of {} candidate bands (the kurtogram's 3 most impulsive, a grid of 1/8- and 1/16-rate cells, \

@@ -13,11 +13,14 @@
 //! to one narrow band; a coincidence in one band is); otherwise the call is "unclear" with both
 //! candidates named.
 
+use std::borrow::Cow;
+
 use serde::{Deserialize, Serialize};
 
 use super::Finding;
 use super::rules::{
-    BALL_TRAIN_DB, CAGE_HARMONICS, CORROBORATING_BANDS, MARGIN_DB, PRESENT_DB, PRESENT_HARMONICS,
+    BALL_TRAIN_DB, CAGE_HARMONICS, COMB_OVERLAP, CORROBORATING_BANDS, MARGIN_DB, PRESENT_DB,
+    PRESENT_HARMONICS,
 };
 use crate::kinematics::FaultKind;
 
@@ -35,8 +38,79 @@ pub struct LocationCall {
     pub reason: String,
 }
 
+/// Whether the combs of two defect rates read the same envelope lines ([`COMB_OVERLAP`]).
+pub(crate) fn combs_coincide(a_hz: f64, b_hz: f64) -> bool {
+    let lo = a_hz.min(b_hz);
+    lo > 0.0 && (a_hz - b_hz).abs() / lo < COMB_OVERLAP.value
+}
+
+/// Whether two locations' families count as one in the band search: the same kind, or the outer race
+/// and the rolling elements when their combs coincide.
+pub(crate) fn same_lines(a: FaultKind, a_hz: f64, b: FaultKind, b_hz: f64) -> bool {
+    let pair =
+        |x: FaultKind, y: FaultKind| x == FaultKind::OuterRace && y == FaultKind::RollingElement;
+    a == b || ((pair(a, b) || pair(b, a)) && combs_coincide(a_hz, b_hz))
+}
+
 fn present(f: &Finding) -> bool {
     f.score_db >= PRESENT_DB.value && f64::from(f.harmonics) >= PRESENT_HARMONICS.value
+}
+
+/// What [`resolve_coinciding`] found.
+enum Coinciding {
+    /// The two leading families are not outer race and rolling element on coinciding combs.
+    No,
+    /// Rolling element (its finding, with the pair's score), and the reason's addition.
+    Element(Finding, String),
+    /// No FTF modulation to tell them apart: why.
+    Unclear(String),
+}
+
+/// When the two leading families are the outer race and the rolling elements on coinciding combs
+/// ([`COMB_OVERLAP`]) and neither beats the other by [`MARGIN_DB`], they read the same lines: the
+/// FTF line (smooth load-zone modulation gives mainly the first FTF harmonic, see [`CAGE_HARMONICS`])
+/// marks a rolling element carried through the load zone at cage speed; without it the call is unclear.
+fn resolve_coinciding(ranked: &[&Finding], cage: Option<&Finding>) -> Coinciding {
+    let (Some(best), Some(second)) = (ranked.first(), ranked.get(1)) else {
+        return Coinciding::No;
+    };
+    if !(present(best)
+        && best.kind != second.kind
+        && same_lines(
+            best.kind,
+            best.defect_rate_hz,
+            second.kind,
+            second.defect_rate_hz,
+        )
+        && best.score_db - second.score_db < MARGIN_DB.value)
+    {
+        return Coinciding::No;
+    }
+    let gap = 100.0 * (best.defect_rate_hz - second.defect_rate_hz).abs()
+        / best.defect_rate_hz.min(second.defect_rate_hz);
+    let ftf_line = cage
+        .and_then(|c| c.harmonic_db.first().copied())
+        .filter(|&h| h >= PRESENT_DB.value);
+    let Some(line_db) = ftf_line else {
+        return Coinciding::Unclear(format!(
+            "the outer-race and 2xBSF combs coincide for this bearing (BPFO and 2xBSF {gap:.1} % apart), so their lines ({:.1} dB) fit both, and no FTF modulation tells them apart",
+            best.score_db
+        ));
+    };
+    let element = if best.kind == FaultKind::RollingElement {
+        best
+    } else {
+        second
+    };
+    Coinciding::Element(
+        Finding {
+            score_db: best.score_db,
+            ..(*element).clone()
+        },
+        format!(
+            "; BPFO and 2xBSF are {gap:.1} % apart, so the comb fits both, and the FTF line at {line_db:.1} dB shows a rolling element carried through the load zone at cage speed"
+        ),
+    )
 }
 
 /// Decides the location from the envelope findings (any order). `usable` names the problem of a clipped
@@ -91,10 +165,29 @@ pub(crate) fn locate(
             reason: "no fault family could be scored".to_owned(),
         };
     };
-    let runner = ranked.get(1).copied();
+    // Outer race and rolling element on coinciding combs that score alike: FTF modulation decides.
+    let (best, runner, coincide_note) = match resolve_coinciding(&ranked, get(FaultKind::Cage)) {
+        Coinciding::No => (Cow::Borrowed(best), ranked.get(1).copied(), String::new()),
+        Coinciding::Element(element, note) => (Cow::Owned(element), ranked.get(2).copied(), note),
+        Coinciding::Unclear(why) => {
+            return LocationCall {
+                diagnosis: "unclear".to_owned(),
+                confidence: 0.25,
+                candidates: ranked.iter().take(2).map(|f| f.fault.clone()).collect(),
+                reason: format!("{why}{cage_note}"),
+            };
+        }
+    };
+    let best: &Finding = &best;
     let runner_db = runner.map_or(0.0, |r| r.score_db);
     let margin = best.score_db - runner_db;
-    let candidates: Vec<String> = ranked.iter().take(2).map(|f| f.fault.clone()).collect();
+    let candidates: Vec<String> = if coincide_note.is_empty() {
+        ranked.iter().take(2).map(|f| f.fault.clone()).collect()
+    } else {
+        std::iter::once(best.fault.clone())
+            .chain(runner.map(|r| r.fault.clone()))
+            .collect()
+    };
     let m = MARGIN_DB.value;
     let d = PRESENT_DB.value;
     if !present(best) {
@@ -138,6 +231,12 @@ pub(crate) fn locate(
     let confidence = 0.5
         + 0.25 * ((margin - m) / m).clamp(0.0, 1.0)
         + 0.25 * ((best.score_db - d) / d).clamp(0.0, 1.0);
+    // A call resolved between coinciding combs rests on the FTF line, not on the comb: capped.
+    let confidence = if coincide_note.is_empty() {
+        confidence
+    } else {
+        confidence.min(0.8)
+    };
     let support = match best.kind {
         FaultKind::InnerRace if best.sidebands > 0 => ", with ±1x sidebands",
         FaultKind::RollingElement if best.sidebands > 0 => ", with ±FTF sidebands",
@@ -148,7 +247,7 @@ pub(crate) fn locate(
         confidence,
         candidates,
         reason: format!(
-            "{} family at {:.1} dB with {} harmonics{support}, {margin:.1} dB over {}{cage_note}",
+            "{} family at {:.1} dB with {} harmonics{support}, {margin:.1} dB over {}{coincide_note}{cage_note}",
             best.fault,
             best.score_db,
             best.harmonics,

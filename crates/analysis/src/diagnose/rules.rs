@@ -94,12 +94,22 @@ pub const CORROBORATING_BANDS: Rule = Rule {
     source: "physics (an impact excites a broad resonance region, so its family shows in overlapping and neighbouring bands); checked on sim (no correct call lost) and CWRU (turns the 750-1500 Hz outer-race calls on ball records 185/186 into unclear)",
 };
 
+/// Relative gap under which the outer-race and 2xBSF combs read the same lines.
+pub const COMB_OVERLAP: Rule = Rule {
+    id: "comb_overlap",
+    value: 0.04,
+    unit: "relative gap of BPFO and 2xBSF",
+    meaning: "when BPFO and 2xBSF lie this close (each comb's slip search reaches 2 % either side, so both combs then land on the same lines), their scores cannot tell outer race from rolling element: the lines count for both in the band search, and, unless one comb beats the other by the margin, the call is rolling element when FTF modulation (the FTF line at least 12 dB over its floor: a damaged element carried through the load zone at cage speed) is there, else \"unclear\"; an outer-race defect sits still in the load zone and is not modulated at FTF",
+    source: "physics (kinematics: for roller bearings with element/pitch diameter near 0.16, e.g. 14 rollers of 15 mm on a 92 mm pitch, BPFO and 2xBSF differ by under 2 %); checked on the demo plant (rolling-element fault on such a bearing), sim and CWRU (not triggered there: 2xBSF/BPFO = 1.31)",
+};
+
 /// The whole table.
-pub const LOCATION_RULES: [Rule; 10] = [
+pub const LOCATION_RULES: [Rule; 11] = [
     PRESENT_DB,
     PRESENT_HARMONICS,
     MARGIN_DB,
     CORROBORATING_BANDS,
+    COMB_OVERLAP,
     CAGE_HARMONICS,
     BALL_TRAIN_DB,
     TONAL_FRACTION,

@@ -235,3 +235,72 @@ fn location_rules_are_documented() {
         );
     }
 }
+
+fn scored(kind: FaultKind, rate_hz: f64, score_db: f64, harmonic_db: Vec<f64>) -> Finding {
+    Finding {
+        fault: kind.label().to_owned(),
+        kind,
+        defect_rate_hz: rate_hz,
+        score_db,
+        harmonics: harmonic_db.iter().filter(|&&h| h >= 10.0).count() as u32,
+        sidebands: 2,
+        matched_hz: rate_hz,
+        harmonic_db,
+        linear_harmonics: 0,
+        linear_sidebands: 0,
+    }
+}
+
+// Kinematics (REFERENCES §1.1 formulas): 14 rollers of 15 mm on a 92 mm pitch give BPFO = 5.86x and
+// 2xBSF = 5.97x, 1.9 % apart, inside the two combs' 2 % slip reach, so the two families read the same
+// lines and only FTF modulation can tell a rolling element from the outer race. On the CWRU drive-end
+// geometry the two rates are 31 % apart and the rule does not apply.
+#[test]
+fn coinciding_outer_race_and_element_combs_are_told_apart_by_ftf_modulation() {
+    let roller = BearingGeometry {
+        rolling_elements: 14,
+        element_diameter: 15.0,
+        pitch_diameter: 92.0,
+        contact_angle_deg: 0.0,
+    }
+    .factors()
+    .unwrap();
+    let fr = 29.65;
+    let (bpfo, two_bsf, ftf) = (roller.bpfo * fr, 2.0 * roller.bsf * fr, roller.ftf * fr);
+    assert!(locate::combs_coincide(bpfo, two_bsf));
+    let cw = cwru_de();
+    assert!(!locate::combs_coincide(cw.bpfo, 2.0 * cw.bsf));
+    let comb = vec![0.0, 19.0, 16.0, 12.0, 10.0];
+    let with_ftf = |ftf_line_db: f64| {
+        vec![
+            scored(FaultKind::OuterRace, bpfo, 17.6, comb.clone()),
+            scored(FaultKind::RollingElement, two_bsf, 17.6, comb.clone()),
+            scored(
+                FaultKind::Cage,
+                ftf,
+                14.0,
+                vec![ftf_line_db, 9.0, 4.0, 2.0, 1.0],
+            ),
+            scored(
+                FaultKind::InnerRace,
+                roller.bpfi * fr,
+                6.0,
+                vec![5.0, 4.0, 3.0],
+            ),
+        ]
+    };
+    let call = locate::locate(&with_ftf(30.0), None, Some(3));
+    assert_eq!(call.diagnosis, "rolling element", "{}", call.reason);
+    assert!(call.confidence <= 0.8);
+    assert!(call.reason.contains("FTF line"), "{}", call.reason);
+    // No FTF line: the comb fits both, so the honest call is "unclear" with both named.
+    let call = locate::locate(&with_ftf(3.0), None, Some(3));
+    assert_eq!(call.diagnosis, "unclear", "{}", call.reason);
+    assert!(call.candidates.contains(&"outer race".to_owned()));
+    assert!(call.candidates.contains(&"rolling element".to_owned()));
+    // One comb fitting clearly better (by the margin) wins as usual.
+    let mut clear = with_ftf(30.0);
+    clear[0].score_db = 24.0;
+    let call = locate::locate(&clear, None, Some(3));
+    assert_eq!(call.diagnosis, "outer race", "{}", call.reason);
+}
