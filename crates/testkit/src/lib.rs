@@ -8,6 +8,7 @@
 //! - [`route`]: route folders (recordings plus `route.csv`);
 //! - [`contents`]: what a database holds about its readings, checked for completeness;
 //! - [`corpus`]: the committed fuzz corpora and regressions (`fuzz/corpus`, `fuzz/regressions`);
+//! - [`tmpfs`]: a small file system of a test's own, for read-only and full-disk tests;
 //! - [`plant_values`]: the plant-file values check shared by the `plant_values` fuzz target and the
 //!   store's corpus replay test.
 //!
@@ -21,4 +22,5 @@ pub mod corpus;
 pub mod plant_values;
 pub mod plants;
 pub mod route;
+pub mod tmpfs;
 pub mod wav;
