@@ -2,8 +2,8 @@
 //! transaction per chunk of readings. Each reading is still all-or-nothing: its row, waveform, results
 //! and log line are in the same transaction, so a crash leaves either all of them or none.
 //!
-//! [`files`] reads the recordings safely (worker threads), [`write`] writes the readings and the log,
-//! [`reanalyze`] recomputes stale results.
+//! `files.rs` reads the recordings safely (worker threads), `write.rs` writes the readings and the log,
+//! `reanalyze.rs` recomputes stale results.
 
 mod files;
 mod reanalyze;

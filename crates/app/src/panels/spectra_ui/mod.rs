@@ -1,6 +1,6 @@
 //! One bearing's spectra from chosen months, overlaid or stacked, with fault-frequency markers.
 //!
-//! [`plot`] draws the plot itself (curves, stacking, markers, cursor); [`markers`] has the marker
+//! `plot.rs` draws the plot itself (curves, stacking, markers, cursor); `markers.rs` has the marker
 //! choice and the display controls.
 
 mod markers;
