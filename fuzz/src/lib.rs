@@ -7,9 +7,9 @@ use std::sync::OnceLock;
 
 use spallcast_formats::{FormatError, Recording};
 
-/// The plant-file values check (the `plant_values` target).
+/// The plant-file values check (the `plant_values` target), from the shared test-support crate.
 #[cfg(feature = "plant")]
-pub mod plant_values;
+pub use spallcast_testkit::plant_values;
 
 /// A per-process scratch folder, created once.
 fn scratch_dir() -> &'static Path {

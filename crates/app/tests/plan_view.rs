@@ -12,9 +12,6 @@
 )]
 
 mod common;
-// The planner crate's invented plant (two intake pumps, one blower, three outages).
-#[path = "../../plan/tests/common/mod.rs"]
-mod plan_fixture;
 
 use std::collections::BTreeMap;
 
@@ -22,12 +19,13 @@ use common::drag_and_drop;
 use eframe::egui;
 use egui_kittest::kittest::Queryable;
 use egui_kittest::{Harness, HarnessBuilder};
-use plan_fixture::d;
 use spallcast_app::plan_view::{PlanPanel, PlanView};
 use spallcast_app::store_backend::plan_steps;
 use spallcast_plan::Forecast;
 use spallcast_plan::source::PlanChange;
 use spallcast_store::{PlanStatus, Store};
+// The planner's invented plant (two intake pumps, one blower, three outages).
+use spallcast_testkit::plants::{d, plant_store};
 
 struct Fixture {
     store: Store,
@@ -56,7 +54,7 @@ fn outage_id(store: &Store, name: &str) -> i64 {
 
 fn fixture() -> Fixture {
     let dir = tempfile::tempdir().unwrap();
-    let store = plan_fixture::plant_store(&dir.path().join("plant.db"));
+    let store = plant_store(&dir.path().join("plant.db"));
     let fc = |stage, rb: &str, rf: &str| Forecast {
         stage,
         evidence: "outer-race tones with harmonics".into(),

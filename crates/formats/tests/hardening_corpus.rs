@@ -11,43 +11,13 @@
     reason = "tests: a panic is a failure"
 )]
 
-use std::path::{Component, Path, PathBuf};
+use std::path::{Component, Path};
 
 use spallcast_formats::{
     FormatError, MAX_RPM, Recording, clipping_fraction, read_csv_waveform, read_manifest,
     read_recording, read_uff58, read_wav, validate,
 };
-
-fn fuzz_dir() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("../../fuzz")
-}
-
-/// Every file of `fuzz/corpus/<target>` and `fuzz/regressions/<target>`, sorted by path.
-fn inputs(target: &str) -> Vec<(PathBuf, Vec<u8>)> {
-    let mut out = Vec::new();
-    for kind in ["corpus", "regressions"] {
-        let dir = fuzz_dir().join(kind).join(target);
-        let Ok(entries) = std::fs::read_dir(&dir) else {
-            continue;
-        };
-        for entry in entries {
-            let path = entry.unwrap().path();
-            if path.is_file() {
-                let bytes = std::fs::read(&path).unwrap();
-                out.push((path, bytes));
-            }
-        }
-    }
-    out.sort();
-    // The corpus is committed: an empty one means the test lost its inputs, not that all is well.
-    assert!(
-        out.len() >= 3,
-        "expected a committed fuzz corpus for {target} under {}, found {} files",
-        fuzz_dir().display(),
-        out.len()
-    );
-    out
-}
+use spallcast_testkit::corpus::inputs;
 
 fn assert_names_file(err: &FormatError, path: &Path, source: &Path) {
     let message = err.to_string();

@@ -16,39 +16,8 @@ use spallcast_pipeline::assess::{STAGE_VERSION, assess_position, assess_store};
 use spallcast_simulate::{BearingFactors, Condition, FaultKind, MachineParams, Stage, simulate};
 use spallcast_store::{PlantFile, Store};
 
-const PLANT: &str = r#"
-[site]
-name = "Marsh Lane Test Works"
-timezone_offset = "+00:00"
-
-[[bearing_types]]
-designation = "QX-12"
-kind = "deep-groove ball"
-rolling_elements = 9
-element_diameter_mm = 12.7
-pitch_diameter_mm = 65.0
-contact_angle_deg = 0.0
-
-[[areas]]
-name = "Filters"
-  [[areas.machines]]
-  id = "FL-P2"
-  name = "Backwash pump 2"
-  kind = "pump"
-  nominal_rpm = 1480.0
-  iso_group = 2
-  iso_support = "rigid"
-    [[areas.machines.bearings]]
-    position = "PDE"
-    bearing_type = "QX-12"
-    lubrication = "grease"
-    installed = "2025-09-01"
-    history = [ { installed = "2024-12-01", removed = "2025-09-01", found = "outer race spall" } ]
-    [[areas.machines.points]]
-    id = "FL-P2-PDE-H"
-    bearing = "PDE"
-    direction = "H"
-"#;
+/// The test plant (an invented site).
+const PLANT: &str = spallcast_testkit::plants::MARSH_LANE;
 
 const FS_HZ: f64 = 102_400.0;
 

@@ -1,14 +1,12 @@
 //! The plan over a real (temporary) database: assigning, moving, marking done, outage edits, export.
 
-mod common;
-
 use std::collections::BTreeMap;
 
 use chrono::{TimeZone, Utc};
-use common::{d, plant_store};
 use spallcast_plan::source::{PlanChange, apply_change, current_lives, load_board_with};
 use spallcast_plan::{ExportFormat, Forecast, PlanStatus, export_database};
 use spallcast_store::OutageInput;
+use spallcast_testkit::plants::{d, plant_store};
 
 fn forecasts(lives: &[(i64, &str, &str)]) -> BTreeMap<i64, Forecast> {
     lives

@@ -140,3 +140,6 @@ pub fn refuse_to_overwrite_a_database(
     }
     Ok(())
 }
+
+#[cfg(test)]
+mod tests;

@@ -9,12 +9,11 @@
     reason = "tests: a panic is a failure"
 )]
 
-#[path = "hardening_common.rs"]
-mod hardening_common;
+mod common;
 
 use std::time::{Duration, Instant};
 
-use hardening_common::{Contents, contents, import_command, import_ok, readings_of, write_route};
+use common::{Contents, contents, import_command, import_ok, readings_of, write_route};
 use spallcast_store::Store;
 
 #[test]

@@ -13,13 +13,12 @@
     reason = "tests: a panic is a failure"
 )]
 
-#[path = "hardening_common.rs"]
-mod hardening_common;
+mod common;
 
 use std::process::Stdio;
 use std::time::Instant;
 
-use hardening_common::{contents, import_command, write_route};
+use common::{contents, import_command, write_route};
 
 /// Readings in the route folder.
 const READINGS: usize = 24;

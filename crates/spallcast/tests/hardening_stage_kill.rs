@@ -17,12 +17,15 @@
     reason = "tests: a panic is a failure"
 )]
 
+mod common;
+
 use std::collections::BTreeMap;
 use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Stdio};
 use std::time::{Duration, Instant};
 
+use common::import_command;
 use spallcast_simulate::{BearingFactors, Condition, FaultKind, MachineParams, Stage, simulate};
 
 /// Machines in the invented test plant; each has two bearings with one measurement point each.
@@ -158,18 +161,6 @@ name = "Kill hall"
     }
     std::fs::write(route.join("route.csv"), manifest).unwrap();
     (route, plant_path)
-}
-
-fn import_command(route: &Path, db: &Path, plant: &Path) -> Command {
-    let mut c = Command::new(env!("CARGO_BIN_EXE_spallcast"));
-    c.arg("import")
-        .arg(route)
-        .arg("--db")
-        .arg(db)
-        .arg("--plant")
-        .arg(plant)
-        .arg("--json");
-    c
 }
 
 /// (point, `taken_at`) → (stage, stage-logic version, evidence) of every stored stage call.

@@ -4,9 +4,8 @@
     clippy::expect_used,
     reason = "test code: a failure is the test failing"
 )]
-#[path = "import_common.rs"]
-mod import_common;
-
+use spallcast_testkit::plants::marrow_ridge;
+use spallcast_testkit::route::write_sine_route;
 use std::process::Command;
 
 fn spallcast(args: &[&str]) -> std::process::Output {
@@ -20,13 +19,13 @@ fn spallcast(args: &[&str]) -> std::process::Output {
 fn json_summary_with_plant_rejects_and_reimport() {
     let tmp = tempfile::tempdir().unwrap();
     let route = tmp.path().join("route");
-    import_common::write_route(&route, 6, 2048, 3);
+    write_sine_route(&route, 6, 2048, 3);
     // One extra row naming a point the plant does not have.
     let mut manifest = std::fs::read_to_string(route.join("route.csv")).unwrap();
     manifest.push_str("r0000.wav,NOT-A-POINT,2026-04-01T08:00:00+02:00,2970\n");
     std::fs::write(route.join("route.csv"), manifest).unwrap();
     let plant = tmp.path().join("plant.toml");
-    std::fs::write(&plant, import_common::plant_text(3)).unwrap();
+    std::fs::write(&plant, marrow_ridge(3)).unwrap();
     let db = tmp.path().join("plant.db");
     let (r, d, p) = (
         route.to_str().unwrap(),

@@ -4,28 +4,23 @@
     clippy::expect_used,
     reason = "test code: a failure is the test failing"
 )]
-#[path = "import_common.rs"]
-mod import_common;
-
 use std::process::Command;
 use std::time::{Duration, Instant};
 
 use spallcast_store::{PlantFile, Store};
+use spallcast_testkit::plants::marrow_ridge;
+use spallcast_testkit::route::write_sine_route;
 
 #[test]
 fn killing_an_import_midway_leaves_a_valid_database_and_rerun_completes() {
     const TOTAL: usize = 400;
     let tmp = tempfile::tempdir().unwrap();
     let route = tmp.path().join("route");
-    import_common::write_route(&route, TOTAL, 65_536, 4);
+    write_sine_route(&route, TOTAL, 65_536, 4);
     let db = tmp.path().join("plant.db");
     {
         let mut store = Store::open(&db).unwrap();
-        let plant = PlantFile::parse(
-            &import_common::plant_text(4),
-            std::path::Path::new("plant.toml"),
-        )
-        .unwrap();
+        let plant = PlantFile::parse(&marrow_ridge(4), std::path::Path::new("plant.toml")).unwrap();
         store.apply_plant(&plant).unwrap();
     }
     let exe = env!("CARGO_BIN_EXE_spallcast");

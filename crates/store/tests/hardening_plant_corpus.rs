@@ -9,42 +9,17 @@
     reason = "tests: a panic is a failure"
 )]
 
-use std::path::{Path, PathBuf};
+use std::path::Path;
 
 use spallcast_store::PlantFile;
-
-fn fuzz_dir() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("../../fuzz")
-}
-
-fn inputs() -> Vec<(PathBuf, Vec<u8>)> {
-    let mut out = Vec::new();
-    for kind in ["corpus", "regressions"] {
-        let Ok(entries) = std::fs::read_dir(fuzz_dir().join(kind).join("plant_file")) else {
-            continue;
-        };
-        for entry in entries {
-            let path = entry.unwrap().path();
-            if path.is_file() {
-                let bytes = std::fs::read(&path).unwrap();
-                out.push((path, bytes));
-            }
-        }
-    }
-    out.sort();
-    assert!(
-        out.len() >= 3,
-        "expected a committed plant-file fuzz corpus, found {} files",
-        out.len()
-    );
-    out
-}
+use spallcast_testkit::corpus::{fuzz_dir, inputs};
+use spallcast_testkit::plant_values;
 
 #[test]
 fn plant_file_corpus_and_regressions() {
     let path = Path::new("/corpus/plant.toml");
     let (mut ok, mut err) = (0, 0);
-    for (source, bytes) in inputs() {
+    for (source, bytes) in inputs("plant_file") {
         // The fuzz target feeds only UTF-8 text (a plant file is read as a string).
         let Ok(text) = std::str::from_utf8(&bytes) else {
             continue;
@@ -93,40 +68,22 @@ fn demo_plant_file_round_trips() {
     assert_eq!(first, again.to_toml().unwrap());
 }
 
-#[path = "../../../fuzz/src/plant_values.rs"]
-#[allow(
-    dead_code,
-    clippy::all,
-    clippy::pedantic,
-    reason = "the fuzz crate's check, included by path; linted there"
-)]
-mod plant_values;
-
 /// Replays the plant-values fuzz corpus (`fuzz/corpus/plant_values/`, and any regressions) through the
 /// same check the fuzz target applies (issue 16 item 6: accepted values are usable, refused ones name
 /// the file).
 #[test]
 fn plant_values_corpus_and_regressions() {
     let mut replayed = 0;
-    for kind in ["corpus", "regressions"] {
-        let Ok(entries) = std::fs::read_dir(fuzz_dir().join(kind).join("plant_values")) else {
-            continue;
-        };
-        for entry in entries {
-            let path = entry.unwrap().path();
-            if path.is_file() {
-                let bytes = std::fs::read(&path).unwrap();
-                if let Err(panic) = std::panic::catch_unwind(|| plant_values::check(&bytes)) {
-                    let why = panic
-                        .downcast_ref::<String>()
-                        .cloned()
-                        .or_else(|| panic.downcast_ref::<&str>().map(|s| (*s).to_owned()))
-                        .unwrap_or_default();
-                    panic!("input {}: {why}", path.display());
-                }
-                replayed += 1;
-            }
+    for (path, bytes) in inputs("plant_values") {
+        if let Err(panic) = std::panic::catch_unwind(|| plant_values::check(&bytes)) {
+            let why = panic
+                .downcast_ref::<String>()
+                .cloned()
+                .or_else(|| panic.downcast_ref::<&str>().map(|s| (*s).to_owned()))
+                .unwrap_or_default();
+            panic!("input {}: {why}", path.display());
         }
+        replayed += 1;
     }
     assert!(
         replayed >= 20,

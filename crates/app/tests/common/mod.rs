@@ -13,6 +13,8 @@ use std::time::Duration;
 use chrono::{DateTime, FixedOffset};
 use eframe::egui;
 use egui_kittest::Harness;
+use egui_kittest::kittest::Queryable;
+use spallcast_app::path_prompt::PATH_FIELD_LABEL;
 use spallcast_app::{SpallcastApp, StartOptions, StoreBackend};
 use spallcast_store::{
     AnalysisInput, AnalysisOutput, NewReading, PlantFile, ReadingAnalyzer, Store,
@@ -43,82 +45,8 @@ pub const EVIDENCE: &str = "Envelope spectrum shows BPFO with 3 harmonics, 11 dB
 /// The label of the test bearing in the plant tree.
 pub const BEARING_LABEL: &str = "DE  Pump drive end";
 
-const PLANT: &str = r#"
-[site]
-name = "Test Reach Pumping Station"
-timezone_offset = "+00:00"
-
-[[bearing_types]]
-designation = "TRB-9"
-kind = "deep-groove ball"
-rolling_elements = 9
-element_diameter_mm = 7.94
-pitch_diameter_mm = 39.04
-contact_angle_deg = 0.0
-
-[[areas]]
-name = "Lift station"
-  [[areas.machines]]
-  id = "TP-P1"
-  name = "Lift pump 1"
-  kind = "pump"
-  nominal_rpm = 1772.0
-  iso_group = 2
-  iso_support = "rigid"
-    [[areas.machines.bearings]]
-    position = "DE"
-    description = "Pump drive end"
-    bearing_type = "TRB-9"
-    lubrication = "grease"
-    installed = "2026-02-01"
-    history = [ { installed = "2024-03-01", removed = "2026-02-01", found = "outer race spall" } ]
-    [[areas.machines.bearings]]
-    position = "NDE"
-    description = "Pump non-drive end"
-    bearing_type = "TRB-9"
-    lubrication = "oil"
-    installed = "2024-03-01"
-    [[areas.machines.points]]
-    id = "TP-P1-DE-H"
-    bearing = "DE"
-    direction = "H"
-    [[areas.machines.points]]
-    id = "TP-P1-NDE-H"
-    bearing = "NDE"
-    direction = "H"
-
-[[areas]]
-name = "Chlorine store"
-  [[areas.machines]]
-  id = "CL-X1"
-  name = "Extract fan"
-  kind = "fan"
-  nominal_rpm = 1450.0
-  iso_group = 2
-  iso_support = "rigid"
-    [[areas.machines.bearings]]
-    position = "FDE"
-    description = "Fan drive end"
-    bearing_type = "TRB-9"
-    lubrication = "grease"
-    installed = "2025-06-01"
-    [[areas.machines.points]]
-    id = "CL-X1-FDE-H"
-    bearing = "FDE"
-    direction = "H"
-
-[[outages]]
-name = "Lift station May stop"
-start = "2026-05-11"
-end = "2026-05-12"
-areas = ["Lift station"]
-
-[[outages]]
-name = "Chlorine store stop"
-start = "2026-05-20"
-end = "2026-05-20"
-machines = ["CL-X1"]
-"#;
+/// The test plant (an invented site).
+const PLANT: &str = spallcast_testkit::plants::TEST_REACH;
 
 /// Name of the outage that takes the test pump down before its replace-by date.
 pub const LIFT_OUTAGE: &str = "Lift station May stop";
@@ -387,5 +315,20 @@ pub fn drag_and_drop<S>(h: &mut Harness<'_, S>, from: egui::Pos2, to: egui::Pos2
     });
     h.run_steps(2);
     h.remove_cursor();
+    h.run_steps(2);
+}
+
+/// Replaces the text of the (only) text field.
+pub fn retype(h: &mut Harness<'static, SpallcastApp>, text: &str) {
+    h.get_by_role_and_label(egui::Role::TextInput, PATH_FIELD_LABEL)
+        .focus();
+    h.run_steps(1);
+    h.key_press(egui::Key::End);
+    h.run_steps(1);
+    for _ in 0..300 {
+        h.key_press(egui::Key::Backspace);
+    }
+    h.get_by_role_and_label(egui::Role::TextInput, PATH_FIELD_LABEL)
+        .type_text(text);
     h.run_steps(2);
 }

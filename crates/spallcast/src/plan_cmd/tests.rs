@@ -1,10 +1,9 @@
-//! `spallcast plan export` parsed and run as the binary would (the module is the binary's own file).
-
-mod common;
-#[path = "../../spallcast/src/plan_cmd.rs"]
-mod plan_cmd;
+//! `spallcast plan export` parsed and run as the binary would.
 
 use clap::Parser;
+use spallcast_testkit::plants::plant_store;
+
+use super::{PlanArgs, run};
 
 #[derive(Debug, Parser)]
 struct Cli {
@@ -14,10 +13,10 @@ struct Cli {
 
 #[derive(Debug, clap::Subcommand)]
 enum Top {
-    Plan(plan_cmd::PlanArgs),
+    Plan(PlanArgs),
 }
 
-fn parse(args: &[&str]) -> Result<plan_cmd::PlanArgs, clap::Error> {
+fn parse(args: &[&str]) -> Result<PlanArgs, clap::Error> {
     let cli = Cli::try_parse_from(std::iter::once("spallcast").chain(args.iter().copied()))?;
     let Top::Plan(p) = cli.command;
     Ok(p)
@@ -27,7 +26,7 @@ fn parse(args: &[&str]) -> Result<plan_cmd::PlanArgs, clap::Error> {
 fn export_writes_the_chosen_format() {
     let dir = tempfile::tempdir().unwrap();
     let db = dir.path().join("plant.db");
-    drop(common::plant_store(&db));
+    drop(plant_store(&db));
     for (format, head) in [
         ("csv", "outage,outage_start"),
         ("ics", "BEGIN:VCALENDAR\r\n"),
@@ -47,7 +46,7 @@ fn export_writes_the_chosen_format() {
             "2026-12-01",
         ])
         .unwrap();
-        let code = plan_cmd::run(&args).unwrap();
+        let code = run(&args).unwrap();
         assert_eq!(code, std::process::ExitCode::SUCCESS);
         assert!(
             std::fs::read_to_string(&out).unwrap().starts_with(head),
@@ -79,7 +78,7 @@ fn bad_arguments_and_a_missing_database_are_clear_errors() {
         out.to_str().unwrap(),
     ])
     .unwrap();
-    let err = plan_cmd::run(&args).unwrap_err();
+    let err = run(&args).unwrap_err();
     assert!(format!("{err:#}").contains("missing.db"), "{err:#}");
     assert!(!out.exists());
 }

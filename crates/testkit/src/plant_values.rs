@@ -1,11 +1,12 @@
-//! The plant-file values check, shared by the fuzz target `plant_values` and the store's corpus replay
-//! test (`crates/store/tests/hardening_plant_corpus.rs`, which includes this file by path): a valid plant
-//! file whose numbers and ids come from the input bytes (any `f64` bit pattern, including NaN,
-//! infinities and negatives; ids with control characters, empty ids, duplicate outage names).
+//! The plant-file values check, shared by the fuzz target `plant_values` (the fuzz crate depends on
+//! this one) and the store's corpus replay test (`crates/store/tests/hardening_plant_corpus.rs`): a
+//! valid plant file whose numbers and ids come from the input bytes (any `f64` bit pattern, including
+//! NaN, infinities and negatives; ids with control characters, empty ids, duplicate outage names).
 //! Whatever is accepted must be usable: speeds finite and positive, ids non-empty without control
 //! characters, geometry physically possible, outage names unique; whatever is refused must name the
 //! file. Depends only on `spallcast_store`.
 
+use std::fmt::Write as _;
 use std::path::Path;
 
 use spallcast_store::PlantFile;
@@ -81,7 +82,10 @@ fn toml_string(s: &str) -> String {
         match c {
             '"' => out.push_str("\\\""),
             '\\' => out.push_str("\\\\"),
-            c if c.is_control() => out.push_str(&format!("\\u{:04X}", u32::from(c))),
+            // Writing to a `String` cannot fail.
+            c if c.is_control() => {
+                let _ = write!(out, "\\u{:04X}", u32::from(c));
+            }
             c => out.push(c),
         }
     }
