@@ -5,7 +5,7 @@ use std::collections::BTreeMap;
 
 use spallcast_analysis::stage::{ReadingIndicators, ToneUse, keys};
 use spallcast_analysis::{DiagnoseOptions, SpectrumEngine, diagnose_with};
-use spallcast_store::{AnalysisInput, AnalysisOutput, ReadingAnalyzer};
+use spallcast_store::{AnalysisInput, AnalysisOutput, AnalyzeError, ReadingAnalyzer};
 
 /// Version of the analysis recorded beside every stored result: the analysis crate's
 /// [`ANALYSIS_VERSION`](spallcast_analysis::ANALYSIS_VERSION), which changes whenever the diagnosis or
@@ -42,12 +42,9 @@ impl ReadingAnalyzer for SpallcastAnalyzer {
         ANALYZER_VERSION.to_owned()
     }
 
-    fn analyze(&self, input: &AnalysisInput<'_>) -> Result<AnalysisOutput, String> {
+    fn analyze(&self, input: &AnalysisInput<'_>) -> Result<AnalysisOutput, AnalyzeError> {
         let Some(factors) = input.factors else {
-            return Err(
-                "the bearing position has no bearing type with geometry or fault factors"
-                    .to_owned(),
-            );
+            return Err(AnalyzeError::NoFaultFactors);
         };
         let (start, len) = analysed_segment(input.samples_g.len());
         let samples: Vec<f64> = input.samples_g[start..start + len]
@@ -70,7 +67,7 @@ impl ReadingAnalyzer for SpallcastAnalyzer {
                     &options,
                 )
             })
-            .map_err(|e| format!("analysis failed: {e}"))?;
+            .map_err(|e| AnalyzeError::Failed(e.to_string()))?;
         // One set of trend-scalar names (`stage.*`, see `keys`): the stage indicators, plus the peak
         // and the band energies that the stage logic does not read but the trends show.
         let mut scalars: BTreeMap<String, f64> =
@@ -89,7 +86,7 @@ impl ReadingAnalyzer for SpallcastAnalyzer {
         }
         scalars.retain(|_, v| v.is_finite());
         let mut document = serde_json::to_value(&diagnosis)
-            .map_err(|e| format!("analysis result not storable: {e}"))?;
+            .map_err(|e| AnalyzeError::Failed(format!("analysis result not storable: {e}")))?;
         if len < input.samples_g.len()
             && let Some(doc) = document.as_object_mut()
         {

@@ -16,7 +16,7 @@ use std::time::Instant;
 
 use chrono::{DateTime, FixedOffset, Months};
 use spallcast_store::{
-    AnalysisInput, AnalysisOutput, NewReading, PlantFile, ReadingAnalyzer, Store,
+    AnalysisInput, AnalysisOutput, AnalyzeError, NewReading, PlantFile, ReadingAnalyzer, Store,
 };
 
 /// Basic statistics, as the interim command-line analyzer computes.
@@ -26,7 +26,7 @@ impl ReadingAnalyzer for Stats {
     fn version(&self) -> String {
         "bench-stats".to_owned()
     }
-    fn analyze(&self, input: &AnalysisInput<'_>) -> Result<AnalysisOutput, String> {
+    fn analyze(&self, input: &AnalysisInput<'_>) -> Result<AnalysisOutput, AnalyzeError> {
         let n = input.samples_g.len() as f64;
         let (mut s2, mut s4, mut peak) = (0.0_f64, 0.0_f64, 0.0_f64);
         for &x in input.samples_g {

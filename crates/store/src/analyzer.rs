@@ -42,12 +42,26 @@ pub struct AnalysisOutput {
     pub diagnosis: Option<String>,
 }
 
+/// Why a reading could not be analysed; the import rejects the reading with this as its reason.
+#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
+pub enum AnalyzeError {
+    /// The reading's bearing position has no bearing type with geometry or fault factors.
+    #[error("the bearing position has no bearing type with geometry or fault factors")]
+    NoFaultFactors,
+    /// The analysis refused the samples (too short, a bad rate, ...): what it said.
+    #[error("{0}")]
+    Failed(String),
+}
+
 /// The analysis run on every imported reading. Implemented by the binary with the analysis crate;
 /// tests use small analyzers of their own.
 pub trait ReadingAnalyzer: Sync {
     /// Version string stored beside every result; results of other versions are recomputed by
     /// [`Store::reanalyze_stale`](crate::Store::reanalyze_stale).
     fn version(&self) -> String;
-    /// Analyses one reading. An `Err` rejects the reading with that message as the reason.
-    fn analyze(&self, input: &AnalysisInput<'_>) -> Result<AnalysisOutput, String>;
+    /// Analyses one reading. An `Err` rejects the reading with its message as the reason.
+    ///
+    /// # Errors
+    /// Why the reading cannot be analysed.
+    fn analyze(&self, input: &AnalysisInput<'_>) -> Result<AnalysisOutput, AnalyzeError>;
 }

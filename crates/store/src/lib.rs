@@ -56,7 +56,7 @@ mod stage_calls;
 use std::path::PathBuf;
 use std::time::Duration;
 
-pub use analyzer::{AnalysisInput, AnalysisOutput, FaultFactors, ReadingAnalyzer};
+pub use analyzer::{AnalysisInput, AnalysisOutput, AnalyzeError, FaultFactors, ReadingAnalyzer};
 pub use annotations::{NOTE_MAX_CHARS, NewNote, Note, NoteKind};
 pub use error::{Result, StoreError};
 pub use import::{

@@ -2,7 +2,7 @@
 
 use std::collections::BTreeMap;
 
-use spallcast_store::{AnalysisInput, AnalysisOutput, ReadingAnalyzer};
+use spallcast_store::{AnalysisInput, AnalysisOutput, AnalyzeError, ReadingAnalyzer};
 
 /// RMS and peak of `samples`, the sum of squares divided by `n`.
 fn rms_and_peak(samples: &[f32], n: f64) -> (f64, f64) {
@@ -41,7 +41,7 @@ impl ReadingAnalyzer for TestAnalyzer {
     fn version(&self) -> String {
         self.version.clone()
     }
-    fn analyze(&self, input: &AnalysisInput<'_>) -> Result<AnalysisOutput, String> {
+    fn analyze(&self, input: &AnalysisInput<'_>) -> Result<AnalysisOutput, AnalyzeError> {
         let n = input.samples_g.len() as f64;
         let (rms, peak) = rms_and_peak(input.samples_g, n);
         let diagnosis = if rms > self.threshold_g {
@@ -71,7 +71,7 @@ impl ReadingAnalyzer for RmsAnalyzer {
         "hardening-rms-1".to_owned()
     }
 
-    fn analyze(&self, input: &AnalysisInput<'_>) -> Result<AnalysisOutput, String> {
+    fn analyze(&self, input: &AnalysisInput<'_>) -> Result<AnalysisOutput, AnalyzeError> {
         let n = input.samples_g.len().max(1) as f64;
         let (rms, peak) = rms_and_peak(input.samples_g, n);
         let mut scalars = BTreeMap::new();

@@ -17,7 +17,7 @@ use egui_kittest::kittest::Queryable;
 use spallcast_app::path_prompt::PATH_FIELD_LABEL;
 use spallcast_app::{SpallcastApp, StartOptions, StoreBackend};
 use spallcast_store::{
-    AnalysisInput, AnalysisOutput, NewReading, PlantFile, ReadingAnalyzer, Store,
+    AnalysisInput, AnalysisOutput, AnalyzeError, NewReading, PlantFile, ReadingAnalyzer, Store,
 };
 
 /// Shaft speed of the test pump, r/min (the CWRU 1 hp speed, so the fault frequencies can be checked
@@ -63,7 +63,7 @@ impl ReadingAnalyzer for FixtureAnalyzer {
         "window-test-1".to_owned()
     }
 
-    fn analyze(&self, input: &AnalysisInput<'_>) -> Result<AnalysisOutput, String> {
+    fn analyze(&self, input: &AnalysisInput<'_>) -> Result<AnalysisOutput, AnalyzeError> {
         let x: Vec<f64> = input.samples_g.iter().map(|&v| f64::from(v)).collect();
         let mut scalars = BTreeMap::new();
         scalars.insert(

@@ -4,7 +4,7 @@ use rayon::prelude::*;
 
 use super::write::write_results;
 use super::{machine_group, support};
-use crate::analyzer::{AnalysisInput, AnalysisOutput, ReadingAnalyzer};
+use crate::analyzer::{AnalysisInput, AnalysisOutput, AnalyzeError, ReadingAnalyzer};
 use crate::error::Result;
 use crate::queries::factors_from_row;
 use crate::{Store, now_text};
@@ -39,7 +39,7 @@ impl Store {
             for &id in batch {
                 loaded.push(self.load_for_analysis(id)?);
             }
-            let results: Vec<(i64, std::result::Result<AnalysisOutput, String>)> = loaded
+            let results: Vec<(i64, std::result::Result<AnalysisOutput, AnalyzeError>)> = loaded
                 .into_par_iter()
                 .map(|(id, samples, ctx)| {
                     let input = AnalysisInput {
