@@ -52,6 +52,11 @@ pub(crate) fn same_lines(a: FaultKind, a_hz: f64, b: FaultKind, b_hz: f64) -> bo
     a == b || ((pair(a, b) || pair(b, a)) && combs_coincide(a_hz, b_hz))
 }
 
+/// The level at which the family search counts a line (its default `line_db`).
+fn line_db() -> f64 {
+    crate::findings::SearchParams::default().line_db
+}
+
 fn present(f: &Finding) -> bool {
     f.score_db >= PRESENT_DB.value && f64::from(f.harmonics) >= PRESENT_HARMONICS.value
 }
@@ -60,8 +65,8 @@ fn present(f: &Finding) -> bool {
 enum Coinciding {
     /// The two leading families are not outer race and rolling element on coinciding combs.
     No,
-    /// Rolling element (its finding, with the pair's score), and the reason's addition.
-    Element(Finding, String),
+    /// Rolling element or outer race (its finding, with the pair's score), and the reason's addition.
+    Resolved(Finding, String),
     /// No FTF modulation to tell them apart: why.
     Unclear(String),
 }
@@ -69,7 +74,9 @@ enum Coinciding {
 /// When the two leading families are the outer race and the rolling elements on coinciding combs
 /// ([`COMB_OVERLAP`]) and neither beats the other by [`MARGIN_DB`], they read the same lines: the
 /// FTF line (smooth load-zone modulation gives mainly the first FTF harmonic, see [`CAGE_HARMONICS`])
-/// marks a rolling element carried through the load zone at cage speed; without it the call is unclear.
+/// at [`PRESENT_DB`] marks a rolling element carried through the load zone at cage speed; no FTF line
+/// at all (under the search's line level) marks a defect fixed in the load zone, the outer race; in
+/// between the call is unclear.
 fn resolve_coinciding(ranked: &[&Finding], cage: Option<&Finding>) -> Coinciding {
     let (Some(best), Some(second)) = (ranked.first(), ranked.get(1)) else {
         return Coinciding::No;
@@ -88,28 +95,36 @@ fn resolve_coinciding(ranked: &[&Finding], cage: Option<&Finding>) -> Coinciding
     }
     let gap = 100.0 * (best.defect_rate_hz - second.defect_rate_hz).abs()
         / best.defect_rate_hz.min(second.defect_rate_hz);
-    let ftf_line = cage
+    let line_db = cage
         .and_then(|c| c.harmonic_db.first().copied())
-        .filter(|&h| h >= PRESENT_DB.value);
-    let Some(line_db) = ftf_line else {
+        .unwrap_or(0.0);
+    let (kind, why) = if line_db >= PRESENT_DB.value {
+        (
+            FaultKind::RollingElement,
+            format!(
+                "the FTF line at {line_db:.1} dB shows a rolling element carried through the load zone at cage speed"
+            ),
+        )
+    } else if line_db < self::line_db() {
+        (
+            FaultKind::OuterRace,
+            format!(
+                "no FTF line ({line_db:.1} dB): the impacts are not modulated at cage speed, as from a defect fixed in the load zone"
+            ),
+        )
+    } else {
         return Coinciding::Unclear(format!(
-            "the outer-race and 2xBSF combs coincide for this bearing (BPFO and 2xBSF {gap:.1} % apart), so their lines ({:.1} dB) fit both, and no FTF modulation tells them apart",
+            "the outer-race and 2xBSF combs coincide for this bearing (BPFO and 2xBSF {gap:.1} % apart), so their lines ({:.1} dB) fit both, and the FTF line ({line_db:.1} dB) is too weak to tell them apart",
             best.score_db
         ));
     };
-    let element = if best.kind == FaultKind::RollingElement {
-        best
-    } else {
-        second
-    };
-    Coinciding::Element(
+    let chosen = if best.kind == kind { best } else { second };
+    Coinciding::Resolved(
         Finding {
             score_db: best.score_db,
-            ..(*element).clone()
+            ..(*chosen).clone()
         },
-        format!(
-            "; BPFO and 2xBSF are {gap:.1} % apart, so the comb fits both, and the FTF line at {line_db:.1} dB shows a rolling element carried through the load zone at cage speed"
-        ),
+        format!("; BPFO and 2xBSF are {gap:.1} % apart, so the comb fits both, and {why}"),
     )
 }
 
@@ -168,7 +183,7 @@ pub(crate) fn locate(
     // Outer race and rolling element on coinciding combs that score alike: FTF modulation decides.
     let (best, runner, coincide_note) = match resolve_coinciding(&ranked, get(FaultKind::Cage)) {
         Coinciding::No => (Cow::Borrowed(best), ranked.get(1).copied(), String::new()),
-        Coinciding::Element(element, note) => (Cow::Owned(element), ranked.get(2).copied(), note),
+        Coinciding::Resolved(chosen, note) => (Cow::Owned(chosen), ranked.get(2).copied(), note),
         Coinciding::Unclear(why) => {
             return LocationCall {
                 diagnosis: "unclear".to_owned(),

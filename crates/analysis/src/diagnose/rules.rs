@@ -99,7 +99,7 @@ pub const COMB_OVERLAP: Rule = Rule {
     id: "comb_overlap",
     value: 0.04,
     unit: "relative gap of BPFO and 2xBSF",
-    meaning: "when BPFO and 2xBSF lie this close (each comb's slip search reaches 2 % either side, so both combs then land on the same lines), their scores cannot tell outer race from rolling element: the lines count for both in the band search, and, unless one comb beats the other by the margin, the call is rolling element when FTF modulation (the FTF line at least 12 dB over its floor: a damaged element carried through the load zone at cage speed) is there, else \"unclear\"; an outer-race defect sits still in the load zone and is not modulated at FTF",
+    meaning: "when BPFO and 2xBSF lie this close (each comb's slip search reaches 2 % either side, so both combs then land on the same lines), their scores cannot tell outer race from rolling element: the lines count for both in the band search, and, unless one comb beats the other by the margin, the call is rolling element when FTF modulation is there (the FTF line at least 12 dB over its floor: a damaged element carried through the load zone at cage speed), outer race when there is no FTF line at all (under the 10 dB line level: a defect fixed in the load zone is not modulated at cage speed), and \"unclear\" in between",
     source: "physics (kinematics: for roller bearings with element/pitch diameter near 0.16, e.g. 14 rollers of 15 mm on a 92 mm pitch, BPFO and 2xBSF differ by under 2 %); checked on the demo plant (rolling-element fault on such a bearing), sim and CWRU (not triggered there: 2xBSF/BPFO = 1.31)",
 };
 

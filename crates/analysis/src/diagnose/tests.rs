@@ -253,7 +253,8 @@ fn scored(kind: FaultKind, rate_hz: f64, score_db: f64, harmonic_db: Vec<f64>) -
 
 // Kinematics (REFERENCES §1.1 formulas): 14 rollers of 15 mm on a 92 mm pitch give BPFO = 5.86x and
 // 2xBSF = 5.97x, 1.9 % apart, inside the two combs' 2 % slip reach, so the two families read the same
-// lines and only FTF modulation can tell a rolling element from the outer race. On the CWRU drive-end
+// lines and only FTF modulation can tell a rolling element (carried through the load zone at cage
+// speed) from the outer race (fixed in the load zone). On the CWRU drive-end
 // geometry the two rates are 31 % apart and the rule does not apply.
 #[test]
 fn coinciding_outer_race_and_element_combs_are_told_apart_by_ftf_modulation() {
@@ -293,8 +294,12 @@ fn coinciding_outer_race_and_element_combs_are_told_apart_by_ftf_modulation() {
     assert_eq!(call.diagnosis, "rolling element", "{}", call.reason);
     assert!(call.confidence <= 0.8);
     assert!(call.reason.contains("FTF line"), "{}", call.reason);
-    // No FTF line: the comb fits both, so the honest call is "unclear" with both named.
+    // No FTF line at all: not modulated at cage speed, a defect fixed in the load zone.
     let call = locate::locate(&with_ftf(3.0), None, Some(3));
+    assert_eq!(call.diagnosis, "outer race", "{}", call.reason);
+    assert!(call.reason.contains("no FTF line"), "{}", call.reason);
+    // A weak FTF line (a line, but under the present level): the honest call is "unclear".
+    let call = locate::locate(&with_ftf(11.0), None, Some(3));
     assert_eq!(call.diagnosis, "unclear", "{}", call.reason);
     assert!(call.candidates.contains(&"outer race".to_owned()));
     assert!(call.candidates.contains(&"rolling element".to_owned()));
