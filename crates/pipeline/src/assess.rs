@@ -21,7 +21,8 @@ use spallcast_analysis::forecast::{
 };
 use spallcast_analysis::record::StageRecord;
 use spallcast_analysis::stage::{
-    LifeReading, Location, ReadingIndicators, StageCall, StageOptions, ToneUse, assess_life, keys,
+    LifeLocation, LifeReading, Location, ReadingIndicators, StageCall, StageOptions, ToneUse,
+    assess_life, keys, life_location,
 };
 use spallcast_model::units::unix_s_of_date as date_s;
 use spallcast_store::{BearingState, LifeInfo, ReadingMeta, Store};
@@ -55,6 +56,9 @@ pub struct LifeAssessment {
     pub life: LifeInfo,
     /// One history per measurement point.
     pub points: Vec<PointHistory>,
+    /// The life's one fault location: every point's calls accumulated (see
+    /// [`spallcast_analysis::stage::life_location`]).
+    pub location: LifeLocation,
     /// For a replaced life: the replay against the actual replacement, per point.
     pub backtests: Vec<(String, Backtest)>,
 }
@@ -76,9 +80,14 @@ pub struct BearingSummary {
     pub point: Option<String>,
     /// Stage 0..=4 (`None` without assessed readings).
     pub stage: Option<u8>,
-    /// Fault location.
+    /// Fault location of the current life: every point's readings accumulated, the same for every
+    /// view of the bearing (`None` without assessed readings).
     pub location: Option<Location>,
-    /// Confidence 0..1.
+    /// Confidence 0..1 of that location.
+    pub location_confidence: Option<f64>,
+    /// Why that location (the evidence per location over the life).
+    pub location_reason: Option<String>,
+    /// Confidence 0..1 of the governing point's latest stage call.
     pub confidence: Option<f64>,
     /// Forecast (dates as Unix seconds inside; see the `*_at` fields for dates).
     pub forecast: Option<Forecast>,
@@ -197,9 +206,11 @@ pub fn assess_position(
             }
             points.push(hist);
         }
+        let location = life_location(points.iter().flat_map(|p| &p.calls));
         out.push(LifeAssessment {
             life: life.life,
             points,
+            location,
             backtests,
         });
     }
@@ -241,7 +252,9 @@ pub fn summarize(state: &BearingState, lives: &[LifeAssessment]) -> BearingSumma
         position: state.position.clone(),
         point: best.map(|b| b.0.point.clone()),
         stage: best.map(|b| b.1.stage),
-        location: best.map(|b| b.1.location),
+        location: best.and(current).map(|l| l.location.location),
+        location_confidence: best.and(current).map(|l| l.location.confidence),
+        location_reason: best.and(current).map(|l| l.location.reason.clone()),
         confidence: best.map(|b| b.1.confidence),
         replace_by: best
             .and_then(|b| b.2?.replace_by)

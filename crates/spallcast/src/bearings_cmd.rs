@@ -123,13 +123,14 @@ pub fn bearings_table(rows: &[BearingSummary]) -> String {
     let mut out = String::new();
     let _ = writeln!(
         out,
-        "{:<14} {:<10} {:<8} {:<16} {:>5} {:<16} {:>5} {:<16} {:<16} {:<16}",
+        "{:<14} {:<10} {:<8} {:<16} {:>5} {:<16} {:>8} {:>5} {:<16} {:<16} {:<16}",
         "area",
         "machine",
         "position",
         "point",
         "stage",
         "location",
+        "loc conf",
         "conf",
         "replace by",
         "stage-4 risk",
@@ -138,13 +139,15 @@ pub fn bearings_table(rows: &[BearingSummary]) -> String {
     for r in rows {
         let _ = writeln!(
             out,
-            "{:<14} {:<10} {:<8} {:<16} {:>5} {:<16} {:>5} {:<16} {:<16} {:<16}",
+            "{:<14} {:<10} {:<8} {:<16} {:>5} {:<16} {:>8} {:>5} {:<16} {:<16} {:<16}",
             r.area,
             r.machine,
             r.position,
             r.point.as_deref().unwrap_or("-"),
             r.stage.map_or_else(|| "-".to_owned(), |s| s.to_string()),
             r.location.map_or("-", |l| l.name()),
+            r.location_confidence
+                .map_or_else(|| "-".to_owned(), |c| format!("{:.0}%", 100.0 * c)),
             r.confidence
                 .map_or_else(|| "-".to_owned(), |c| format!("{:.0}%", 100.0 * c)),
             date(r.replace_by),
@@ -273,6 +276,13 @@ pub fn life_report(life: &LifeAssessment) -> String {
                     .map_or_else(String::new, |f| format!(": {f}"))
             )
         )
+    );
+    let _ = writeln!(
+        out,
+        "  location over this life: {} (confidence {:.0}%): {}",
+        life.location.location.name(),
+        100.0 * life.location.confidence,
+        life.location.reason
     );
     for p in &life.points {
         out.push_str(&point_report(p));

@@ -42,8 +42,8 @@ fn ok(args: &[&str]) -> String {
     String::from_utf8_lossy(&o.stdout).into_owned()
 }
 
-/// The demo database, built once; each test works on its own copy.
-fn demo_copy(dir: &Path) -> PathBuf {
+/// The demo database, built once (with the simulator's truth beside it).
+fn demo_built() -> &'static Path {
     static DEMO: OnceLock<(tempfile::TempDir, PathBuf)> = OnceLock::new();
     let (_keep, built) = DEMO.get_or_init(|| {
         let tmp = tempfile::tempdir().expect("a temporary folder");
@@ -51,6 +51,12 @@ fn demo_copy(dir: &Path) -> PathBuf {
         ok(&["demo", "--db", &db.display().to_string()]);
         (tmp, db)
     });
+    built
+}
+
+/// The demo database, built once; each test works on its own copy.
+fn demo_copy(dir: &Path) -> PathBuf {
+    let built = demo_built();
     let copy = dir.join("demo.sqlite");
     spallcast_store::copy_database(built, &copy).expect("a copy of the demo database");
     copy
@@ -483,4 +489,91 @@ fn notes_and_baseline_marks_from_the_command_line() {
         "{}",
         String::from_utf8_lossy(&bad.stderr)
     );
+}
+
+/// Issue 13 item 3: one location per bearing life, accumulated over every point and reading, and
+/// the same in `bearing --json` and `bearings --json`. Checked against the simulator's truth written
+/// beside the demo database (`.truth.csv`): every life whose truth reached stage 2 (defect tones in the
+/// envelope spectrum, common practice, no source) must be located at its true defect, and a life
+/// whose truth never left stage 0 must not be given a kinematic location.
+#[test]
+fn each_demo_bearing_life_is_located_at_its_true_defect() {
+    let built = demo_built();
+    let mut truth_path = built.as_os_str().to_owned();
+    truth_path.push(".truth.csv");
+    let mut reader = csv::Reader::from_path(PathBuf::from(truth_path)).expect("the demo truth");
+    // (machine, bearing) -> [(date, stage, fault)]
+    let mut truth: BTreeMap<(String, String), Vec<(NaiveDate, u64, String)>> = BTreeMap::new();
+    for row in reader.deserialize::<BTreeMap<String, String>>() {
+        let row = row.expect("a truth row");
+        let date = NaiveDate::parse_from_str(&row["date"], "%Y-%m-%d").expect("a date");
+        let stage: u64 = row["stage"].parse().expect("a stage");
+        truth
+            .entry((row["machine"].clone(), row["bearing"].clone()))
+            .or_default()
+            .push((date, stage, row["fault"].clone()));
+    }
+    let tmp = tempfile::tempdir().expect("a temporary folder");
+    let db = demo_copy(tmp.path()).display().to_string();
+    let summary: serde_json::Value =
+        serde_json::from_str(&ok(&["bearings", "--db", &db, "--json"])).expect("bearings --json");
+    let mut located = 0;
+    let mut healthy_lives = 0;
+    for b in summary["bearings"].as_array().expect("a bearings array") {
+        let machine = b["machine"].as_str().expect("machine");
+        let position = b["position"].as_str().expect("position");
+        let id = format!("{machine}/{position}");
+        let doc: serde_json::Value =
+            serde_json::from_str(&ok(&["bearing", &id, "--db", &db, "--json"])).expect("JSON");
+        let lives = doc["lives"].as_array().expect("lives");
+        let rows = truth
+            .get(&(machine.to_owned(), position.to_owned()))
+            .cloned()
+            .unwrap_or_default();
+        for (i, life) in lives.iter().enumerate() {
+            let installed = NaiveDate::parse_from_str(
+                life["life"]["installed"].as_str().expect("installed"),
+                "%Y-%m-%d",
+            )
+            .expect("a date");
+            let removed = life["life"]["removed"]
+                .as_str()
+                .map(|d| NaiveDate::parse_from_str(d, "%Y-%m-%d").expect("a date"));
+            let in_life: Vec<_> = rows
+                .iter()
+                .filter(|(d, _, _)| *d >= installed && removed.is_none_or(|r| *d < r))
+                .collect();
+            let got = life["location"]["location"].as_str().expect("a location");
+            let worst = in_life.iter().map(|r| r.1).max().unwrap_or(0);
+            if worst >= 2 {
+                let fault = in_life
+                    .iter()
+                    .find(|r| r.1 >= 2)
+                    .map(|r| r.2.as_str())
+                    .expect("a faulty row");
+                let want = match fault {
+                    "OuterRace" => "outer race",
+                    "InnerRace" => "inner race",
+                    "RollingElement" => "rolling element",
+                    "Cage" => "cage",
+                    other => panic!("unknown truth fault {other}"),
+                };
+                assert_eq!(got, want, "{id} life {i}: {}", life["location"]);
+                located += 1;
+            } else if worst == 0 && !in_life.is_empty() {
+                assert!(
+                    matches!(got, "none" | "unknown"),
+                    "{id} life {i} is healthy in the truth but located at {got}: {}",
+                    life["location"]
+                );
+                healthy_lives += 1;
+            }
+            if i + 1 == lives.len() {
+                // The replacement list shows the current life's location.
+                assert_eq!(b["location"].as_str().unwrap_or("none"), got, "{id}");
+            }
+        }
+    }
+    assert!(located >= 6, "faulty lives located: {located}");
+    assert!(healthy_lives >= 10, "healthy lives checked: {healthy_lives}");
 }

@@ -20,6 +20,7 @@
 mod evaluate;
 mod from_diagnosis;
 mod indicators;
+mod life_location;
 pub mod rules;
 
 use serde::{Deserialize, Serialize};
@@ -29,6 +30,7 @@ pub use indicators::{
     Baseline, DbForm, INDICATORS, IndicatorDef, Location, ReadingIndicators, RelativeForm,
     RelativeIndicators, ToneEvidence, db_over, keys, median,
 };
+pub use life_location::{LifeLocation, LocationSupport, life_location};
 
 /// One reading of a bearing life, as the assessment sees it.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]

@@ -394,8 +394,28 @@ pub const STAGE3_LIFE_FRACTION_MAX: Rule = Rule {
     source: "common practice, no source; from memory, low confidence (reference sheet 6.1)",
 };
 
+/// Evidence a life's location needs before it is named.
+pub const LIFE_LOCATION_EVIDENCE: Rule = Rule {
+    id: "life_location_evidence",
+    value: 1.5,
+    unit: "reading-equivalents (sum of call confidences)",
+    meaning: "a bearing life's location (all its points and readings accumulated) is named once the leading location's summed call confidences reach this, i.e. about two confident readings; before that it is unclear",
+    source: "robust by construction (one reading never settles a life); checked on the demo plant (every faulty life's location) and the simulator histories of stage_sim",
+};
+
+/// How far the leading location must outweigh the runner-up.
+pub const LIFE_LOCATION_RATIO: Rule = Rule {
+    id: "life_location_ratio",
+    value: 2.0,
+    unit: "ratio of summed confidences",
+    meaning: "the leading location must carry at least this many times the runner-up's summed call confidences (two thirds of the located evidence between them) to be named; a named location gives way only to one that outweighs it by the same ratio, so a life's location does not flip with single readings",
+    source: "robust by construction (hysteresis on accumulated evidence); checked on the demo plant and the simulator histories of stage_sim",
+};
+
 /// The whole table, for display and documentation.
 pub const RULES: &[Rule] = &[
+    LIFE_LOCATION_EVIDENCE,
+    LIFE_LOCATION_RATIO,
     BASELINE_FRACTION,
     CONFIRM_FRACTION,
     CONFIRM_SHARE,
