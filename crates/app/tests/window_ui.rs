@@ -207,6 +207,15 @@ fn evidence_trend_and_waveform_views_show_the_bearing() {
         Some(STAGES[3])
     );
     assert!(h.query_by_label(&format!("• {EVIDENCE}")).is_some());
+    // The thresholds behind the calls are folded under the evidence, the same table as `spallcast
+    // rules`: unfolding shows the location margin with its value.
+    let margin = spallcast_analysis::location_rules::MARGIN_DB;
+    let margin_line = format!("{} = {} {}", margin.id, margin.value, margin.unit);
+    assert!(h.query_by_label(&margin_line).is_none(), "folded at first");
+    h.get_by_label(spallcast_app::panels::bearing_ui::RULES_HEADER)
+        .click();
+    h.run_steps(2);
+    assert!(h.query_by_label(&margin_line).is_some(), "{margin_line}");
 
     h.get_by_label("Life trend").click();
     h.run_steps(3);

@@ -112,6 +112,7 @@ impl EvidencePanel {
                         if call.evidence.is_empty() {
                             ui.label("The call has no evidence sentences.");
                         }
+                        rules_ui(ui);
                     });
             }
         }
@@ -228,4 +229,29 @@ impl EvidencePanel {
             self.note_text.clear();
         }
     }
+}
+
+/// The header of the thresholds list under the evidence.
+pub const RULES_HEADER: &str = "Thresholds behind the calls";
+
+/// Every threshold of the location, stage and life calls (the same table as `spallcast rules`), folded
+/// under the evidence so an analyst can check what a sentence rests on.
+fn rules_ui(ui: &mut egui::Ui) {
+    use spallcast_analysis::location_rules::LOCATION_RULES;
+    use spallcast_analysis::stage::rules::RULES;
+    egui::CollapsingHeader::new(RULES_HEADER)
+        .default_open(false)
+        .show(ui, |ui| {
+            for (title, rules) in [
+                ("Band choice and fault location", &LOCATION_RULES[..]),
+                ("Stage and remaining life", RULES),
+            ] {
+                ui.strong(title);
+                for r in rules {
+                    ui.label(format!("{} = {} {}", r.id, r.value, r.unit))
+                        .on_hover_text(format!("{}\nChecked on: {}", r.meaning, r.source));
+                    ui.label(egui::RichText::new(r.meaning).small());
+                }
+            }
+        });
 }
