@@ -11,7 +11,7 @@
 
 use spallcast_analysis::forecast::{ForecastContext, Lubrication, forecast_life};
 use spallcast_analysis::stage::{
-    LifeReading, ReadingIndicators, StageOptions, ToneUse, assess_life,
+    LifeReading, Location, ReadingIndicators, StageOptions, ToneUse, assess_life, life_location,
 };
 use spallcast_analysis::{DiagnoseOptions, FaultFactors, diagnose};
 use spallcast_simulate::{
@@ -42,6 +42,8 @@ struct Outcome {
     stage3_day: Option<f64>,
     /// `replace_by` minus true stage-3 onset, days, at each reading before that onset with a forecast.
     forecast_errors_days: Vec<f64>,
+    /// The life's accumulated location (every reading's call).
+    location: spallcast_analysis::stage::LifeLocation,
 }
 
 fn factors() -> BearingFactors {
@@ -165,6 +167,7 @@ fn run(case: &Case, months: usize) -> Outcome {
     }
     Outcome {
         name: case.name,
+        location: life_location(&calls),
         truth,
         called,
         lead_days,
@@ -308,6 +311,41 @@ fn simulated_histories_are_staged_and_forecast() {
         all_errors.len()
     );
     assert!(overall < 180.0, "median replace_by error {overall:.0} days");
+
+    // One location per life (rules life_location_evidence and life_location_ratio): each faulted
+    // life is located at its simulated defect, and no healthy life gets a kinematic location.
+    for o in &outcomes {
+        println!(
+            "{}: life location {} ({:.0} %): {}",
+            o.name,
+            o.location.location.name(),
+            100.0 * o.location.confidence,
+            o.location.reason
+        );
+    }
+    for (case, o) in cases.iter().zip(&outcomes) {
+        let want = match case.fault {
+            Some(FaultKind::OuterRace) => Location::OuterRace,
+            Some(FaultKind::InnerRace) => Location::InnerRace,
+            Some(FaultKind::RollingElement) => Location::RollingElement,
+            Some(FaultKind::Cage) => Location::Cage,
+            None => Location::None,
+        };
+        if want == Location::None {
+            assert!(
+                !Location::KINEMATIC.contains(&o.location.location),
+                "{}: {}",
+                o.name,
+                o.location.reason
+            );
+        } else {
+            assert_eq!(
+                o.location.location, want,
+                "{}: {}",
+                o.name, o.location.reason
+            );
+        }
+    }
 }
 
 // Density invariance on a simulated life: the outer-race grease-fed history read every week and at

@@ -575,5 +575,8 @@ fn each_demo_bearing_life_is_located_at_its_true_defect() {
         }
     }
     assert!(located >= 6, "faulty lives located: {located}");
-    assert!(healthy_lives >= 10, "healthy lives checked: {healthy_lives}");
+    assert!(
+        healthy_lives >= 10,
+        "healthy lives checked: {healthy_lives}"
+    );
 }
