@@ -312,9 +312,13 @@ fn simulated_histories_are_staged_and_forecast() {
     );
     assert!(overall < 180.0, "median replace_by error {overall:.0} days");
 
-    // One location per life (rules life_location_evidence and life_location_ratio): each faulted
-    // life is located at its simulated defect, and no healthy life gets a kinematic location.
-    for o in &outcomes {
+    assert_life_locations(&cases, &outcomes);
+}
+
+/// One location per life (rules `life_location_evidence` and `life_location_ratio`): each faulted life is
+/// located at its simulated defect, and no healthy life gets a kinematic location.
+fn assert_life_locations(cases: &[Case], outcomes: &[Outcome]) {
+    for o in outcomes {
         println!(
             "{}: life location {} ({:.0} %): {}",
             o.name,
@@ -323,7 +327,7 @@ fn simulated_histories_are_staged_and_forecast() {
             o.location.reason
         );
     }
-    for (case, o) in cases.iter().zip(&outcomes) {
+    for (case, o) in cases.iter().zip(outcomes) {
         let want = match case.fault {
             Some(FaultKind::OuterRace) => Location::OuterRace,
             Some(FaultKind::InnerRace) => Location::InnerRace,
