@@ -496,14 +496,16 @@ fn notes_and_baseline_marks_from_the_command_line() {
 /// beside the demo database (`.truth.csv`): every life whose truth reached stage 2 (defect tones in the
 /// envelope spectrum, common practice, no source) must be located at its true defect, and a life
 /// whose truth never left stage 0 must not be given a kinematic location.
+/// One row of the simulator's truth for a (machine, bearing): date, true stage, true fault.
+type TruthRow = (NaiveDate, u64, String);
+
 #[test]
 fn each_demo_bearing_life_is_located_at_its_true_defect() {
     let built = demo_built();
     let mut truth_path = built.as_os_str().to_owned();
     truth_path.push(".truth.csv");
     let mut reader = csv::Reader::from_path(PathBuf::from(truth_path)).expect("the demo truth");
-    // (machine, bearing) -> [(date, stage, fault)]
-    let mut truth: BTreeMap<(String, String), Vec<(NaiveDate, u64, String)>> = BTreeMap::new();
+    let mut truth: BTreeMap<(String, String), Vec<TruthRow>> = BTreeMap::new();
     for row in reader.deserialize::<BTreeMap<String, String>>() {
         let row = row.expect("a truth row");
         let date = NaiveDate::parse_from_str(&row["date"], "%Y-%m-%d").expect("a date");
