@@ -7,12 +7,14 @@
 //! accepted shape.
 //!
 //! Schema history: 1 — `{schema_version, point, call, forecast}`. Rows written before the version
-//! existed (`{call, forecast, point}`) are rewritten to 1 by store migration 5.
+//! existed (`{call, forecast, point}`) are rewritten to 1 by store migration 5. Schema 1 later gained
+//! the optional `life_location` (absent in rows written before it, read as `None`; the stage-logic
+//! version changed with it, so those rows are re-assessed when a database is opened).
 
 use serde::{Deserialize, Serialize};
 
 use crate::forecast::Forecast;
-use crate::stage::StageCall;
+use crate::stage::{LifeLocation, StageCall};
 
 /// The schema version written into every [`StageRecord`]. Raise it when the record's shape changes,
 /// and add a store migration that rewrites (or marks stale) the stored rows.
@@ -29,6 +31,10 @@ pub struct StageRecord {
     pub call: StageCall,
     /// The forecast as it stood at this reading (`None` when nothing could be projected).
     pub forecast: Option<Forecast>,
+    /// The bearing life's location as it stood at this reading: the calls of every point of the
+    /// life up to this reading's time accumulated ([`crate::stage::life_location`]).
+    #[serde(default)]
+    pub life_location: Option<LifeLocation>,
 }
 
 impl StageRecord {
@@ -39,7 +45,15 @@ impl StageRecord {
             point: point.into(),
             call,
             forecast,
+            life_location: None,
         }
+    }
+
+    /// The record with the life's location as it stood at this reading.
+    #[must_use]
+    pub fn with_life_location(mut self, location: LifeLocation) -> Self {
+        self.life_location = Some(location);
+        self
     }
 
     /// True when the record is of the schema this build reads.

@@ -149,6 +149,9 @@ pub struct StageCallView {
     pub points: Vec<String>,
     /// Evidence sentences, in the order the stage logic gave them.
     pub evidence: Vec<String>,
+    /// The life's fault location as it stands at its newest reading (the one `spallcast bearings`
+    /// and the planner's exports show), when the stored record holds one.
+    pub location: Option<spallcast_analysis::stage::LifeLocation>,
 }
 
 /// An analyst's note on a bearing or one of its readings.

@@ -60,6 +60,7 @@ fn fixture() -> Fixture {
         evidence: "outer-race tones with harmonics".into(),
         replace_by: d(rb),
         risk_from: d(rf),
+        location: None,
     };
     let mut forecasts = BTreeMap::new();
     // IN-P1: replace by 20 Apr; the last intake outage before then is the spring shutdown.

@@ -21,16 +21,17 @@ use spallcast_analysis::forecast::{
 };
 use spallcast_analysis::record::StageRecord;
 use spallcast_analysis::stage::{
-    LifeLocation, LifeReading, Location, ReadingIndicators, StageCall, StageOptions, ToneUse,
-    assess_life, keys, life_location,
+    LifeLocation, LifeReading, Location, LocationTally, ReadingIndicators, StageCall, StageOptions,
+    ToneUse, assess_life, keys,
 };
 use spallcast_model::units::unix_s_of_date as date_s;
 use spallcast_store::{BearingState, LifeInfo, ReadingMeta, Store};
 
 use crate::error::{Doing as _, PipelineError, Result};
 
-/// Version of the stage logic recorded with every stored call.
-pub const STAGE_VERSION: &str = "spallcast-stage-1";
+/// Version of the stage logic recorded with every stored call (2: each record carries the life's
+/// location as it stood at that reading).
+pub const STAGE_VERSION: &str = "spallcast-stage-2";
 
 /// The assessed history of one measurement point over one bearing life.
 #[derive(Debug, Clone, Serialize)]
@@ -45,6 +46,8 @@ pub struct PointHistory {
     pub calls: Vec<StageCall>,
     /// Forecast at each reading (causal: from the calls up to it).
     pub forecasts: Vec<Option<Forecast>>,
+    /// The life's location as it stood at each reading (every point's calls up to its time).
+    pub life_locations: Vec<LifeLocation>,
     /// Readings left out (not analysed or suspect), with the reason.
     pub skipped: Vec<(i64, String)>,
 }
@@ -162,6 +165,7 @@ pub fn assess_position(
                 taken_at: Vec::new(),
                 calls: Vec::new(),
                 forecasts: Vec::new(),
+                life_locations: Vec::new(),
                 skipped: Vec::new(),
             };
             let mut life_readings = Vec::new();
@@ -206,7 +210,7 @@ pub fn assess_position(
             }
             points.push(hist);
         }
-        let location = life_location(points.iter().flat_map(|p| &p.calls));
+        let location = running_life_locations(&mut points);
         out.push(LifeAssessment {
             life: life.life,
             points,
@@ -215,6 +219,46 @@ pub fn assess_position(
         });
     }
     Ok(out)
+}
+
+/// Fills each point's `life_locations` (the life's location as it stood at each reading: every
+/// point's calls with a time up to that reading's accumulated, ties taken together) and returns the
+/// location over the whole life.
+fn running_life_locations(points: &mut [PointHistory]) -> LifeLocation {
+    let mut order: Vec<(usize, usize)> = points
+        .iter()
+        .enumerate()
+        .flat_map(|(p, h)| (0..h.calls.len()).map(move |i| (p, i)))
+        .collect();
+    order.sort_by(|a, b| {
+        points[a.0].calls[a.1]
+            .t_s
+            .total_cmp(&points[b.0].calls[b.1].t_s)
+    });
+    let mut at: Vec<Vec<Option<LifeLocation>>> =
+        points.iter().map(|h| vec![None; h.calls.len()]).collect();
+    let mut tally = LocationTally::default();
+    let mut k = 0;
+    while k < order.len() {
+        let t = points[order[k].0].calls[order[k].1].t_s;
+        let mut end = k;
+        while end < order.len() && points[order[end].0].calls[order[end].1].t_s <= t {
+            tally.add(&points[order[end].0].calls[order[end].1]);
+            end += 1;
+        }
+        let now = tally.location();
+        for &(p, i) in &order[k..end] {
+            at[p][i] = Some(now.clone());
+        }
+        k = end;
+    }
+    for (h, locs) in points.iter_mut().zip(at) {
+        h.life_locations = locs
+            .into_iter()
+            .map(|l| l.unwrap_or_else(|| tally.location()))
+            .collect();
+    }
+    tally.location()
 }
 
 /// The summary of a position from its current (latest) life: the point with the highest stage, then
@@ -336,8 +380,15 @@ pub fn store_position_calls(
     for life in lives {
         for p in &life.points {
             skipped += p.skipped.len();
-            for ((id, call), forecast) in p.reading_ids.iter().zip(&p.calls).zip(&p.forecasts) {
-                let record = StageRecord::new(p.point.clone(), call.clone(), forecast.clone());
+            for (((id, call), forecast), location) in p
+                .reading_ids
+                .iter()
+                .zip(&p.calls)
+                .zip(&p.forecasts)
+                .zip(&p.life_locations)
+            {
+                let record = StageRecord::new(p.point.clone(), call.clone(), forecast.clone())
+                    .with_life_location(location.clone());
                 let evidence =
                     serde_json::to_value(&record).map_err(|source| PipelineError::Encode {
                         reading_id: *id,

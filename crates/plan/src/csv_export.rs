@@ -9,19 +9,22 @@
 //! applied to every cell, including names from the plant file and the planner's notes; the numbers and
 //! ISO dates we write never start with those characters, so they are unchanged.
 //!
-//! Layout: a header row, then one row per planned or done replacement (outages by start date, bearings
-//! by machine and position), then one row per bearing still without a slot (status `unplanned`, outage
-//! columns empty, sorted by replace-by date). `bearing_notes` holds the analyst's notes on the bearing's
-//! life (one per line). The last column, `caution`, repeats the advisory line
-//! ([`crate::SAFETY_CAUTION`]) on every row, so it stays with any row a spreadsheet filter keeps. Fields are quoted when they hold a comma, a quote or a line
-//! break; lines end in CRLF; the file is UTF-8 without a byte-order mark.
+//! Layout: a header row, then one row per planned or done replacement (outages by start date, bearings by
+//! machine and position), then one row per bearing still without a slot (status `unplanned`, outage columns
+//! empty, sorted by replace-by date). `bearing_notes` holds the analyst's notes on the bearing's life (one
+//! per line). `location` is the fault location accumulated over the bearing's life with its confidence
+//! (`outer race (87 %)`), `unclear` when the evidence does not settle it, `none` when no defect tone was
+//! found over the life, and empty when the life has no assessment yet. The last column, `caution`, repeats
+//! the advisory line ([`crate::SAFETY_CAUTION`]) on every row, so it stays with any row a spreadsheet
+//! filter keeps. Fields are quoted when they hold a comma, a quote or a line break; lines end in CRLF; the
+//! file is UTF-8 without a byte-order mark.
 
 use crate::board::PlanBoard;
 use crate::error::Result;
 use crate::model::{BearingLife, Forecast};
 
 /// The header row, in order.
-pub const CSV_COLUMNS: [&str; 19] = [
+pub const CSV_COLUMNS: [&str; 20] = [
     "outage",
     "outage_start",
     "outage_end",
@@ -33,6 +36,7 @@ pub const CSV_COLUMNS: [&str; 19] = [
     "bearing_type",
     "lubrication",
     "stage",
+    "location",
     "replace_by",
     "risk_from",
     "evidence",
@@ -158,14 +162,18 @@ fn row(
     bearing_notes: String,
 ) -> Vec<String> {
     let [outage, start, end, status] = head;
-    let (stage, replace_by, risk_from, evidence) = forecast.map_or_else(Default::default, |f| {
-        (
-            f.stage.to_string(),
-            f.replace_by.to_string(),
-            f.risk_from.to_string(),
-            f.evidence.clone(),
-        )
-    });
+    let (stage, location, replace_by, risk_from, evidence) =
+        forecast.map_or_else(Default::default, |f| {
+            (
+                f.stage.to_string(),
+                f.location
+                    .as_ref()
+                    .map_or_else(String::new, crate::model::LifeLocationCall::label),
+                f.replace_by.to_string(),
+                f.risk_from.to_string(),
+                f.evidence.clone(),
+            )
+        });
     vec![
         outage,
         start,
@@ -178,6 +186,7 @@ fn row(
         life.bearing_type.clone(),
         life.lubrication.clone(),
         stage,
+        location,
         replace_by,
         risk_from,
         evidence,

@@ -197,9 +197,14 @@ fn card(
         let _ = write!(
             h,
             "<tr><th>Stage</th><td><span class=\"stage s{s}\">{s}</span></td></tr>\
+             <tr><th>Fault location</th><td>{loc}</td></tr>\
              <tr><th>Evidence</th><td>{ev}</td></tr><tr><th>Replace by</th><td>{rb}</td></tr>\
              <tr><th>At risk from</th><td>{rf}</td></tr>",
             s = f.stage.min(4),
+            loc = escape(&f.location.as_ref().map_or_else(
+                || "not recorded".to_owned(),
+                crate::model::LifeLocationCall::label
+            )),
             ev = escape(&f.evidence),
             rb = f.replace_by,
             rf = f.risk_from,

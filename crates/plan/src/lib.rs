@@ -36,7 +36,9 @@ use chrono::{DateTime, Utc};
 pub use board::PlanBoard;
 pub use error::{PlanError, Result};
 pub use html::{BearingImages, ImagesByLife, SAFETY_CAUTION, SpectrumImage, TrendImage};
-pub use model::{BearingLife, BearingNeed, Forecast, Outage, PlanEntry, PlanStatus};
+pub use model::{
+    BearingLife, BearingNeed, Forecast, LifeLocationCall, Outage, PlanEntry, PlanStatus,
+};
 pub use rules::{SlotWarning, fits, need_warnings, next_down, slot_warnings, suggest};
 
 /// The planner's export formats.

@@ -48,6 +48,30 @@ pub struct Forecast {
     pub replace_by: NaiveDate,
     /// From this date the bearing is at risk of failing in service.
     pub risk_from: NaiveDate,
+    /// Where the defect is over the bearing's life (the location `spallcast bearings` shows), when
+    /// the stored record holds one.
+    pub location: Option<LifeLocationCall>,
+}
+
+/// A bearing life's fault location with its confidence, as the planner's exports show it.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct LifeLocationCall {
+    /// The location ("unclear" is [`spallcast_model::Location::Unknown`]).
+    pub location: spallcast_model::Location,
+    /// Confidence, whole percent (0–100).
+    pub confidence_pct: u8,
+}
+
+impl LifeLocationCall {
+    /// "outer race (87 %)"; "unclear" when the evidence does not settle it; "none" when no defect
+    /// tone was found over the life.
+    pub fn label(&self) -> String {
+        match self.location {
+            spallcast_model::Location::Unknown => "unclear".to_owned(),
+            spallcast_model::Location::None => "none".to_owned(),
+            l => format!("{} ({} %)", l.name(), self.confidence_pct),
+        }
+    }
 }
 
 /// A bearing life that needs a replacement slot: the life and its forecast.

@@ -231,6 +231,7 @@ mod tests {
                 evidence: "outer race tones".into(),
                 replace_by: d(replace_by),
                 risk_from: d(risk_from),
+                location: None,
             },
         }
     }

@@ -18,7 +18,7 @@ use spallcast_store::{BearingState, OutageInput, PlanSnapshot, Store};
 use crate::board::PlanBoard;
 use crate::error::{PlanError, Result};
 use crate::html::{BearingImages, ImagesByLife, SpectrumImage, TrendImage};
-use crate::model::{BearingLife, BearingNeed, Forecast, PlanEntry, PlanStatus};
+use crate::model::{BearingLife, BearingNeed, Forecast, LifeLocationCall, PlanEntry, PlanStatus};
 
 /// Bearings at or above this stage are offered for a slot. Stage 1 shows only ultrasonic-band energy;
 /// the replacement window opens at stage 2 (common practice, no source; REFERENCES §9), but a stage-1
@@ -300,6 +300,9 @@ pub struct BearingCall {
     pub stage: u8,
     /// The stored record, when it is of the current schema.
     pub record: Option<StageRecord>,
+    /// The life's location as it stands at the life's latest reading (the record of the newest call
+    /// of any point): the same one `spallcast bearings` shows. `None` when that record has none.
+    pub location: Option<spallcast_analysis::stage::LifeLocation>,
 }
 
 /// Every bearing's call, by position id. A bearing whose newest life has no stored call (one just
@@ -328,6 +331,10 @@ fn governing_calls(point_calls: Vec<spallcast_store::PointCall>) -> BTreeMap<i64
     let mut out = BTreeMap::new();
     for (position_id, calls) in by_position {
         let points: Vec<String> = calls.iter().map(|(pc, _)| pc.point.clone()).collect();
+        let location = calls
+            .iter()
+            .max_by_key(|(pc, _)| pc.taken_at)
+            .and_then(|(_, record)| record.as_ref()?.life_location.clone());
         let best = governing(calls, |(pc, record)| CallRank {
             stage: pc.call.stage,
             urgency_s: urgency_s(record.as_ref().and_then(|r| r.forecast.as_ref())),
@@ -345,6 +352,7 @@ fn governing_calls(point_calls: Vec<spallcast_store::PointCall>) -> BTreeMap<i64
                     points,
                     stage: pc.call.stage,
                     record,
+                    location,
                 },
             );
         }
@@ -372,14 +380,16 @@ pub fn stored_forecasts(store: &Store) -> Result<BTreeMap<i64, Forecast>> {
             .as_ref()
             .and_then(|r| forecast_from_record(call.stage, r))
         {
-            out.insert(call.life_id, f);
+            // The life's location as it stands at its newest reading, not at the governing one.
+            let location = call.location.as_ref().map(location_call).or(f.location);
+            out.insert(call.life_id, Forecast { location, ..f });
         }
     }
     Ok(out)
 }
 
 /// The planner's forecast from a stage record: `None` unless the record is of the current schema and
-/// its forecast has both dates.
+/// its forecast has both dates; the location is the record's own (as it stood at that reading).
 pub fn forecast_from_record(stage: u8, record: &StageRecord) -> Option<Forecast> {
     if !record.is_current() {
         return None;
@@ -390,7 +400,17 @@ pub fn forecast_from_record(stage: u8, record: &StageRecord) -> Option<Forecast>
         evidence: record.call.evidence.join("; "),
         replace_by: date_of_unix_s(forecast.replace_by?.t_s)?,
         risk_from: date_of_unix_s(forecast.risk_from?.t_s)?,
+        location: record.life_location.as_ref().map(location_call),
     })
+}
+
+/// The planner's form of a life's location.
+fn location_call(l: &spallcast_analysis::stage::LifeLocation) -> LifeLocationCall {
+    LifeLocationCall {
+        location: l.location,
+        // In 0..=100 after the clamp: the cast cannot truncate.
+        confidence_pct: (100.0 * l.confidence.clamp(0.0, 1.0)).round() as u8,
+    }
 }
 
 /// Reads the board with the forecasts stored in the database.

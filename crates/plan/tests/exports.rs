@@ -12,8 +12,8 @@ use chrono::{NaiveDate, TimeZone, Utc};
 use icalendar::{Component, DatePerhapsTime};
 use spallcast_plan::{
     BearingImages, BearingLife, BearingNeed, ExportContext, ExportFormat, Forecast, ImagesByLife,
-    Outage, PlanBoard, PlanEntry, PlanStatus, SAFETY_CAUTION, SpectrumImage, TrendImage,
-    export_bytes, export_to_path,
+    LifeLocationCall, Outage, PlanBoard, PlanEntry, PlanStatus, SAFETY_CAUTION, SpectrumImage,
+    TrendImage, export_bytes, export_to_path,
 };
 
 fn d(s: &str) -> NaiveDate {
@@ -39,6 +39,10 @@ fn forecast(stage: u8, evidence: &str, replace_by: &str, risk_from: &str) -> For
         evidence: evidence.into(),
         replace_by: d(replace_by),
         risk_from: d(risk_from),
+        location: evidence.contains("outer-race").then_some(LifeLocationCall {
+            location: spallcast_model::Location::OuterRace,
+            confidence_pct: 87,
+        }),
     }
 }
 
@@ -185,6 +189,12 @@ fn csv_reads_back_field_for_field_with_an_rfc4180_parser() {
     assert_eq!(r0["bearing_type"], "TCX-209");
     assert_eq!(r0["lubrication"], "grease");
     assert_eq!(r0["stage"], "2");
+    assert_eq!(r0["location"], "outer race (87 %)");
+    assert!(
+        rows.iter()
+            .any(|r| !r["stage"].is_empty() && r["location"].is_empty()),
+        "a forecast without a recorded location leaves the cell empty"
+    );
     assert_eq!(r0["replace_by"], "2027-04-20");
     assert_eq!(r0["risk_from"], "2027-06-01");
     assert_eq!(

@@ -19,6 +19,7 @@ fn forecasts(lives: &[(i64, &str, &str)]) -> BTreeMap<i64, Forecast> {
                     evidence: "defect tones".into(),
                     replace_by: d(rb),
                     risk_from: d(rf),
+                    location: None,
                 },
             )
         })

@@ -87,6 +87,27 @@ fn cli_answers(db: &str) -> Answers {
     out
 }
 
+/// `(machine, position)` -> the current life's location name from `bearings --json` ("none" when
+/// it names none).
+fn cli_locations(db: &str) -> BTreeMap<(String, String), String> {
+    let doc: serde_json::Value =
+        serde_json::from_str(&ok(&["bearings", "--db", db, "--json"])).expect("bearings --json");
+    doc["bearings"]
+        .as_array()
+        .expect("a bearings array")
+        .iter()
+        .map(|b| {
+            (
+                (
+                    b["machine"].as_str().expect("machine").to_owned(),
+                    b["position"].as_str().expect("position").to_owned(),
+                ),
+                b["location"].as_str().unwrap_or("none").to_owned(),
+            )
+        })
+        .collect()
+}
+
 fn csv_rows(db: &str, out: &Path) -> Vec<BTreeMap<String, String>> {
     ok(&[
         "plan",
@@ -130,8 +151,10 @@ fn every_view_and_export_gives_each_demo_bearing_the_same_call() {
         "the demo shows at least three defective bearings"
     );
 
-    // The planner's CSV: every bearing row carries the same stage and replace-by as the command line.
+    // The planner's CSV: every bearing row carries the same stage, replace-by and life location as the
+    // command line.
     let rows = csv_rows(&db, &tmp.path().join("plan.csv"));
+    let located = cli_locations(&db);
     let mut in_csv = 0;
     for row in &rows {
         let key = (row["machine_id"].clone(), row["position"].clone());
@@ -151,6 +174,17 @@ fn every_view_and_export_gives_each_demo_bearing_the_same_call() {
             row["replace_by"],
             replace_by.map_or_else(String::new, |d| d.to_string()),
             "{key:?}: CSV replace-by vs bearings --json"
+        );
+        // "outer race (87 %)" -> "outer race"; the CSV says "unclear" where the command line says
+        // "unknown".
+        let csv_location = match row["location"].split(" (").next().unwrap_or_default() {
+            "unclear" => "unknown",
+            other => other,
+        };
+        assert_eq!(
+            csv_location, located[&key],
+            "{key:?}: CSV location {:?} vs bearings --json",
+            row["location"]
         );
     }
     assert!(

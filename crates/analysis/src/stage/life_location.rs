@@ -46,88 +46,115 @@ pub struct LocationSupport {
 pub fn life_location<'a>(calls: impl IntoIterator<Item = &'a StageCall>) -> LifeLocation {
     let mut calls: Vec<&StageCall> = calls.into_iter().collect();
     calls.sort_by(|a, b| a.t_s.total_cmp(&b.t_s));
-    let mut support: Vec<LocationSupport> = Vec::new();
-    let mut standing: Option<Location> = None;
+    let mut tally = LocationTally::default();
     for call in calls {
+        tally.add(call);
+    }
+    tally.location()
+}
+
+/// The running form of [`life_location`]: add a life's calls in time order, read the location as it
+/// stands after any of them. [`life_location`] is this tally after every call.
+#[derive(Debug, Clone, Default)]
+pub struct LocationTally {
+    support: Vec<LocationSupport>,
+    standing: Option<Location>,
+}
+
+impl LocationTally {
+    /// Adds the next call in time order (calls naming no kinematic location add nothing).
+    pub fn add(&mut self, call: &StageCall) {
         if !Location::KINEMATIC.contains(&call.location) {
-            continue;
+            return;
         }
         let weight = call.confidence.clamp(0.0, 1.0);
-        match support.iter_mut().find(|s| s.location == call.location) {
+        match self
+            .support
+            .iter_mut()
+            .find(|s| s.location == call.location)
+        {
             Some(s) => {
                 s.weight += weight;
                 s.readings += 1;
             }
-            None => support.push(LocationSupport {
+            None => self.support.push(LocationSupport {
                 location: call.location,
                 weight,
                 readings: 1,
             }),
         }
-        support.sort_by(|a, b| b.weight.total_cmp(&a.weight));
-        let lead = &support[0];
-        let runner = support.get(1).map_or(0.0, |s| s.weight);
+        self.support.sort_by(|a, b| b.weight.total_cmp(&a.weight));
+        let Some(lead) = self.support.first() else {
+            return;
+        };
+        let runner = self.support.get(1).map_or(0.0, |s| s.weight);
         let settles = lead.weight >= rules::LIFE_LOCATION_EVIDENCE.value
             && lead.weight >= rules::LIFE_LOCATION_RATIO.value * runner;
-        match standing {
-            None if settles => standing = Some(lead.location),
+        match self.standing {
+            None if settles => self.standing = Some(lead.location),
             Some(s) if s != lead.location => {
                 // Another location leads: it takes over only when it outweighs the standing one by the
                 // ratio.
-                let standing_weight = support
+                let standing_weight = self
+                    .support
                     .iter()
                     .find(|x| x.location == s)
                     .map_or(0.0, |x| x.weight);
                 if lead.weight >= rules::LIFE_LOCATION_RATIO.value * standing_weight {
-                    standing = Some(lead.location);
+                    self.standing = Some(lead.location);
                 }
             }
             _ => {}
         }
     }
-    let total: f64 = support.iter().map(|s| s.weight).sum();
-    let describe = |s: &LocationSupport| {
-        format!(
-            "{} {:.1} from {} readings",
-            s.location.name(),
-            s.weight,
-            s.readings
-        )
-    };
-    let Some(lead) = support.first() else {
-        return LifeLocation {
-            location: Location::None,
-            confidence: 0.0,
-            support,
-            reason: "no reading of this life named a fault location".to_owned(),
+
+    /// The location as it stands after the calls added so far.
+    pub fn location(&self) -> LifeLocation {
+        let support = self.support.clone();
+        let total: f64 = support.iter().map(|s| s.weight).sum();
+        let describe = |s: &LocationSupport| {
+            format!(
+                "{} {:.1} from {} readings",
+                s.location.name(),
+                s.weight,
+                s.readings
+            )
         };
-    };
-    let listed = support.iter().map(describe).collect::<Vec<_>>().join(", ");
-    let Some(location) = standing else {
-        return LifeLocation {
-            location: Location::Unknown,
-            confidence: 0.0,
+        let Some(lead) = support.first() else {
+            return LifeLocation {
+                location: Location::None,
+                confidence: 0.0,
+                support,
+                reason: "no reading of this life named a fault location".to_owned(),
+            };
+        };
+        let listed = support.iter().map(describe).collect::<Vec<_>>().join(", ");
+        let Some(location) = self.standing else {
+            return LifeLocation {
+                location: Location::Unknown,
+                confidence: 0.0,
+                reason: format!(
+                    "unclear: the readings do not settle it ({listed}); a location needs {:.1} reading-equivalents and {:.0} times the runner-up",
+                    rules::LIFE_LOCATION_EVIDENCE.value,
+                    rules::LIFE_LOCATION_RATIO.value
+                ),
+                support,
+            };
+        };
+        let own = support
+            .iter()
+            .find(|s| s.location == location)
+            .map_or(lead.weight, |s| s.weight);
+        let thin = (own / (3.0 * rules::LIFE_LOCATION_EVIDENCE.value)).min(1.0);
+        LifeLocation {
+            location,
+            confidence: if total > 0.0 { own / total * thin } else { 0.0 },
             reason: format!(
-                "unclear: the readings do not settle it ({listed}); a location needs {:.0} reading-equivalents and {:.0} times the runner-up",
-                rules::LIFE_LOCATION_EVIDENCE.value,
-                rules::LIFE_LOCATION_RATIO.value
+                "{} over this life, accumulated over every point's readings ({listed})",
+                location.name()
             ),
             support,
-        };
-    };
-    let own = support
-        .iter()
-        .find(|s| s.location == location)
-        .map_or(lead.weight, |s| s.weight);
-    let thin = (own / (3.0 * rules::LIFE_LOCATION_EVIDENCE.value)).min(1.0);
-    LifeLocation {
-        location,
-        confidence: if total > 0.0 { own / total * thin } else { 0.0 },
-        reason: format!(
-            "{} over this life, accumulated over every point's readings ({listed})",
-            location.name()
-        ),
-        support,
+        }
     }
 }
 
@@ -187,5 +214,15 @@ mod tests {
             late.push(call(f64::from(t), InnerRace, 0.9));
         }
         assert_eq!(life_location(&late).location, InnerRace);
+        // The running tally after every call is the whole-life location.
+        let mut tally = LocationTally::default();
+        let mut running = Vec::new();
+        for c in &late {
+            tally.add(c);
+            running.push(tally.location().location);
+        }
+        assert_eq!(tally.location(), life_location(&late));
+        assert_eq!(running[1], OuterRace, "{running:?}");
+        assert_eq!(running.last(), Some(&InnerRace));
     }
 }

@@ -30,7 +30,7 @@ pub use indicators::{
     Baseline, DbForm, INDICATORS, IndicatorDef, Location, ReadingIndicators, RelativeForm,
     RelativeIndicators, ToneEvidence, db_over, keys, median,
 };
-pub use life_location::{LifeLocation, LocationSupport, life_location};
+pub use life_location::{LifeLocation, LocationSupport, LocationTally, life_location};
 
 /// One reading of a bearing life, as the assessment sees it.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]

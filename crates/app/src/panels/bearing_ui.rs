@@ -94,6 +94,9 @@ impl EvidencePanel {
             }
             Some(call) => {
                 ui.strong(format!("Stage {}", call.stage));
+                if let Some(loc) = &call.location {
+                    ui.label(location_line(loc)).on_hover_text(&loc.reason);
+                }
                 ui.label(
                     egui::RichText::new(format!(
                         "called at point {} on {}; points read: {}",
@@ -254,4 +257,29 @@ fn rules_ui(ui: &mut egui::Ui) {
                 }
             }
         });
+}
+
+/// The bearing life's location in one line: "Fault location over this life: outer race (87 %)".
+pub fn location_line(loc: &spallcast_analysis::stage::LifeLocation) -> String {
+    use spallcast_analysis::stage::Location;
+    match loc.location {
+        Location::Unknown => {
+            let named: Vec<&str> = loc
+                .support
+                .iter()
+                .take(2)
+                .map(|s| s.location.name())
+                .collect();
+            format!(
+                "Fault location over this life: unclear (between {})",
+                named.join(" and ")
+            )
+        }
+        Location::None => "Fault location over this life: none named".to_owned(),
+        l => format!(
+            "Fault location over this life: {} ({:.0} %)",
+            l.name(),
+            100.0 * loc.confidence
+        ),
+    }
 }

@@ -422,6 +422,7 @@ impl PlantSource for StoreSource {
                 .as_ref()
                 .map(StageRecord::sentences)
                 .unwrap_or_default(),
+            location: c.location.clone(),
         });
         let forecast = call
             .as_ref()
