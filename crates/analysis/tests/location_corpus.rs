@@ -96,7 +96,7 @@ fn run_corpus(size: usize, seed: u64, keep: &dyn Fn(&CorpusReading) -> bool) -> 
                     .unwrap();
             let p = peer(&mut engine, &x, r);
             println!(
-                "{:>4} {:>7.0} {:>5.0} {:>3} {:<16} {:<4} {:>6.0} {:>5} {:>5.1} {:<16} {:<16} {:>5.2} {:.0}-{:.0} {}",
+                "{:>4} {:>7.0} {:>5.0} {:>3} {:<16} {:<4} {:>6.0} {:>5} {:>5.1} {:<16} {:<16} {:>5.2} {:.0}-{:.0} cb={}/{} {}",
                 r.index,
                 r.sample_rate_hz,
                 r.shaft_hz * 60.0,
@@ -111,6 +111,8 @@ fn run_corpus(size: usize, seed: u64, keep: &dyn Fn(&CorpusReading) -> bool) -> 
                 confidence(&d),
                 d.demodulation_band_hz[0],
                 d.demodulation_band_hz[1],
+                d.band_choice.corroborating_bands,
+                d.band_choice.present_bands,
                 d.findings
                     .iter()
                     .map(|f| format!("{}={:.0}/{}h{}s", f.kind.tag(), f.score_db, f.harmonics, f.sidebands))

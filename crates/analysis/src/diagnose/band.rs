@@ -53,6 +53,11 @@ pub struct BandChoice {
     /// the rolling elements count as one family when their combs coincide, see
     /// [`COMB_OVERLAP`](super::rules::COMB_OVERLAP)).
     pub corroborating_bands: usize,
+    /// Other candidate bands in which some family is present (the strongest scores at least
+    /// [`PRESENT_DB`](super::rules::PRESENT_DB)): the denominator of the corroboration share; 0 in
+    /// documents written before it existed.
+    #[serde(default)]
+    pub present_bands: usize,
     /// Plain-language reason.
     pub reason: String,
 }
@@ -263,6 +268,11 @@ pub(crate) fn choose_band(
                 && *sc >= PRESENT_DB.value
         })
         .count();
+    let present_bands = per_band
+        .iter()
+        .enumerate()
+        .filter(|(j, (_, sc))| *j != i && *sc >= PRESENT_DB.value)
+        .count();
     let reason = format!(
         "of {} candidate bands (the kurtogram's 3 most impulsive, a grid of 1/8- and 1/16-rate cells, \
          1.5-10 kHz and that band scaled to the sample rate), this one shows a fault family most \
@@ -295,6 +305,7 @@ pub(crate) fn choose_band(
             prewhitened: force_prewhiten,
             lines_removed: separate,
             corroborating_bands: corroborating,
+            present_bands,
             reason,
         },
         sig,

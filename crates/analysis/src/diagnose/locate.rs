@@ -19,8 +19,8 @@ use serde::{Deserialize, Serialize};
 
 use super::Finding;
 use super::rules::{
-    BALL_TRAIN_DB, CAGE_HARMONICS, COMB_OVERLAP, CORROBORATING_BANDS, MARGIN_DB, PRESENT_DB,
-    PRESENT_HARMONICS,
+    BALL_TRAIN_DB, CAGE_HARMONICS, COMB_OVERLAP, CORROBORATING_BANDS, CORROBORATING_SHARE,
+    MARGIN_DB, PRESENT_DB, PRESENT_HARMONICS,
 };
 use crate::kinematics::FaultKind;
 
@@ -128,12 +128,22 @@ fn resolve_coinciding(ranked: &[&Finding], cage: Option<&Finding>) -> Coinciding
     )
 }
 
+/// How the other candidate bands read: in how many the chosen family leads while present, and in how
+/// many any family is present.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct Corroboration {
+    /// Bands where the chosen family is the strongest and present.
+    pub agreeing: usize,
+    /// Bands where some family is present.
+    pub present: usize,
+}
+
 /// Decides the location from the envelope findings (any order). `usable` names the problem of a clipped
-/// or silent recording, which never gets a location; `corroborating_bands` is `None` for a user band.
+/// or silent recording, which never gets a location; `corroboration` is `None` for a user band.
 pub(crate) fn locate(
     findings: &[Finding],
     usable: Option<&str>,
-    corroborating_bands: Option<usize>,
+    corroboration: Option<Corroboration>,
 ) -> LocationCall {
     if let Some(why) = usable {
         return LocationCall {
@@ -232,7 +242,7 @@ pub(crate) fn locate(
             ),
         };
     }
-    if corroborating_bands.is_some_and(|c| (c as f64) < CORROBORATING_BANDS.value) {
+    if corroboration.is_some_and(|c| (c.agreeing as f64) < CORROBORATING_BANDS.value) {
         return LocationCall {
             diagnosis: "unclear".to_owned(),
             confidence: 0.25,
@@ -240,6 +250,23 @@ pub(crate) fn locate(
             reason: format!(
                 "{} family at {:.1} dB shows in one candidate band only; impacts excite broad resonance regions, so a real defect shows in more than one{cage_note}",
                 best.fault, best.score_db
+            ),
+        };
+    }
+    if let Some(c) = corroboration.filter(|c| {
+        c.present > 0 && (c.agreeing as f64) < CORROBORATING_SHARE.value * c.present as f64
+    }) {
+        return LocationCall {
+            diagnosis: "unclear".to_owned(),
+            confidence: 0.25,
+            candidates,
+            reason: format!(
+                "{} family at {:.1} dB leads in only {} of the {} other candidate bands where a fault family shows (at least {:.0} % needed); one defect excites its resonance region as a whole, so bands that disagree mean the evidence does not settle the location{cage_note}",
+                best.fault,
+                best.score_db,
+                c.agreeing,
+                c.present,
+                100.0 * CORROBORATING_SHARE.value
             ),
         };
     }

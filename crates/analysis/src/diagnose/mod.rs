@@ -152,7 +152,7 @@ pub struct StageIndicators {
 /// Version of the diagnosis document and of the stage indicators taken from it. Change it whenever
 /// either changes (a new indicator, a new field, a changed computation): stored readings of an older
 /// version are then analysed again when a database is opened.
-pub const ANALYSIS_VERSION: &str = "spallcast-analysis-4";
+pub const ANALYSIS_VERSION: &str = "spallcast-analysis-5";
 
 /// Result of [`diagnose`]. Serialises to the stable JSON document.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -368,7 +368,10 @@ pub fn diagnose_with(
         })
         .collect();
     findings.sort_by(|a, b| b.score_db.total_cmp(&a.score_db));
-    let corroborating = (choice.source != "user").then_some(choice.corroborating_bands);
+    let corroborating = (choice.source != "user").then_some(locate::Corroboration {
+        agreeing: choice.corroborating_bands,
+        present: choice.present_bands,
+    });
     let location = locate::locate(
         &findings,
         recording_problem(&centred, &indicators).as_deref(),

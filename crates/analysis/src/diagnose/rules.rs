@@ -94,6 +94,15 @@ pub const CORROBORATING_BANDS: Rule = Rule {
     source: "physics (an impact excites a broad resonance region, so its family shows in overlapping and neighbouring bands); checked on sim (no correct call lost) and CWRU (turns the 750-1500 Hz outer-race calls on ball records 185/186 into unclear)",
 };
 
+/// Share of the other present bands that must agree with the chosen family.
+pub const CORROBORATING_SHARE: Rule = Rule {
+    id: "corroborating_share",
+    value: 0.85,
+    unit: "share of the other candidate bands in which a family is present",
+    meaning: "a named location must be the strongest family in at least this share of the other candidate bands where any family reaches the presence level, else \"unclear\" with both candidates named",
+    source: "physics (one defect's impacts excite a broad resonance region, so a real family leads in nearly every band that shows anything; bands that name different families mean the envelope evidence is mixed); checked on sim (every right call at stages 2-3 has share 1.0, none lost) and CWRU 12 kHz DE (right calls 0.93-1.00; the wrong races on ball records 118, 119, 222-225 and outer-race records 198, 200 at 0.07-0.79 become unclear; 197, right at 0.14, becomes unclear too)",
+};
+
 /// Relative gap under which the outer-race and 2xBSF combs read the same lines.
 pub const COMB_OVERLAP: Rule = Rule {
     id: "comb_overlap",
@@ -104,11 +113,12 @@ pub const COMB_OVERLAP: Rule = Rule {
 };
 
 /// The whole table.
-pub const LOCATION_RULES: [Rule; 11] = [
+pub const LOCATION_RULES: [Rule; 12] = [
     PRESENT_DB,
     PRESENT_HARMONICS,
     MARGIN_DB,
     CORROBORATING_BANDS,
+    CORROBORATING_SHARE,
     COMB_OVERLAP,
     CAGE_HARMONICS,
     BALL_TRAIN_DB,

@@ -290,22 +290,96 @@ fn coinciding_outer_race_and_element_combs_are_told_apart_by_ftf_modulation() {
             ),
         ]
     };
-    let call = locate::locate(&with_ftf(30.0), None, Some(3));
+    let call = locate::locate(
+        &with_ftf(30.0),
+        None,
+        Some(locate::Corroboration {
+            agreeing: 3,
+            present: 3,
+        }),
+    );
     assert_eq!(call.diagnosis, "rolling element", "{}", call.reason);
     assert!(call.confidence <= 0.8);
     assert!(call.reason.contains("FTF line"), "{}", call.reason);
     // No FTF line at all: not modulated at cage speed, a defect fixed in the load zone.
-    let call = locate::locate(&with_ftf(3.0), None, Some(3));
+    let call = locate::locate(
+        &with_ftf(3.0),
+        None,
+        Some(locate::Corroboration {
+            agreeing: 3,
+            present: 3,
+        }),
+    );
     assert_eq!(call.diagnosis, "outer race", "{}", call.reason);
     assert!(call.reason.contains("no FTF line"), "{}", call.reason);
     // A weak FTF line (a line, but under the present level): the honest call is "unclear".
-    let call = locate::locate(&with_ftf(11.0), None, Some(3));
+    let call = locate::locate(
+        &with_ftf(11.0),
+        None,
+        Some(locate::Corroboration {
+            agreeing: 3,
+            present: 3,
+        }),
+    );
     assert_eq!(call.diagnosis, "unclear", "{}", call.reason);
     assert!(call.candidates.contains(&"outer race".to_owned()));
     assert!(call.candidates.contains(&"rolling element".to_owned()));
     // One comb fitting clearly better (by the margin) wins as usual.
     let mut clear = with_ftf(30.0);
     clear[0].score_db = 24.0;
-    let call = locate::locate(&clear, None, Some(3));
+    let call = locate::locate(
+        &clear,
+        None,
+        Some(locate::Corroboration {
+            agreeing: 3,
+            present: 3,
+        }),
+    );
     assert_eq!(call.diagnosis, "outer race", "{}", call.reason);
+}
+
+// The corroboration share: a family that leads in the chosen band but not in most of the other bands
+// where a family shows is "unclear" with both candidates named (CWRU ball records 118/222 read 9 of
+// 13; right calls read 13 of 14 or more; rules table, `corroborating_share`).
+#[test]
+fn mixed_bands_make_the_location_unclear() {
+    let cw = cwru_de();
+    let fr = 29.95;
+    let findings = vec![
+        scored(
+            FaultKind::InnerRace,
+            cw.bpfi * fr,
+            28.0,
+            vec![30.0, 27.0, 24.0, 20.0],
+        ),
+        scored(
+            FaultKind::OuterRace,
+            cw.bpfo * fr,
+            15.0,
+            vec![16.0, 14.0, 9.0],
+        ),
+        scored(
+            FaultKind::RollingElement,
+            2.0 * cw.bsf * fr,
+            8.0,
+            vec![9.0, 7.0],
+        ),
+        scored(FaultKind::Cage, cw.ftf * fr, 6.0, vec![6.0, 3.0]),
+    ];
+    let agree = |agreeing, present| {
+        locate::locate(
+            &findings,
+            None,
+            Some(locate::Corroboration { agreeing, present }),
+        )
+    };
+    let call = agree(9, 13);
+    assert_eq!(call.diagnosis, "unclear", "{}", call.reason);
+    assert!(call.candidates.contains(&"inner race".to_owned()));
+    assert!(call.reason.contains("9 of the 13"), "{}", call.reason);
+    let call = agree(13, 14);
+    assert_eq!(call.diagnosis, "inner race", "{}", call.reason);
+    // A user band (no corroboration) is judged on its own findings.
+    let call = locate::locate(&findings, None, None);
+    assert_eq!(call.diagnosis, "inner race", "{}", call.reason);
 }
