@@ -5,13 +5,20 @@
 //! - inner race: BPFI harmonics (the defect turns with the shaft; ±1x sidebands support it);
 //! - rolling element: the 2×BSF family (even BSF harmonics), ±FTF sidebands support it;
 //! - cage: a comb of FTF harmonics ([`CAGE_HARMONICS`]) *and no* 2×BSF family ([`BALL_TRAIN_DB`]): a
-//!   damaged ball carried through the load zone at cage speed also puts FTF into the envelope.
+//!   damaged ball carried through the load zone at cage speed also puts FTF into the envelope, and an
+//!   FTF comb with a deep minimum ([`CAGE_NOTCH_DB`]) has the shape of that load-zone window, so it is
+//!   "unclear" (cage or rolling element).
+//!
+//! Families whose combs share lines are told apart by what the lines cannot show: the FTF line for the
+//! outer race and the rolling elements ([`COMB_OVERLAP`]), each family's own sidebands for the inner
+//! race and the rolling elements ([`INNER_ELEMENT_SIDEBANDS`]).
 //!
 //! A present family ([`PRESENT_DB`], [`PRESENT_HARMONICS`]) is named only when it beats the best other
-//! eligible family by [`MARGIN_DB`] and is also the strongest present family in at least one other
-//! candidate band (impacts are broadband and excite a resonance region, so a real defect is not confined
-//! to one narrow band; a coincidence in one band is); otherwise the call is "unclear" with both
-//! candidates named.
+//! eligible family by [`MARGIN_DB`] and is also the strongest present family in other candidate bands:
+//! at least one ([`CORROBORATING_BANDS`]) and a large share of those where any family shows
+//! ([`CORROBORATING_SHARE`]) (impacts are broadband and excite a resonance region, so a real defect is
+//! not confined to one narrow band; a coincidence in one band is); otherwise the call is "unclear" with
+//! both candidates named.
 
 use std::borrow::Cow;
 
@@ -19,8 +26,8 @@ use serde::{Deserialize, Serialize};
 
 use super::Finding;
 use super::rules::{
-    BALL_TRAIN_DB, CAGE_HARMONICS, COMB_OVERLAP, CORROBORATING_BANDS, CORROBORATING_SHARE,
-    MARGIN_DB, PRESENT_DB, PRESENT_HARMONICS,
+    BALL_TRAIN_DB, CAGE_HARMONICS, CAGE_NOTCH_DB, COMB_OVERLAP, CORROBORATING_BANDS,
+    CORROBORATING_SHARE, INNER_ELEMENT_SIDEBANDS, MARGIN_DB, PRESENT_DB, PRESENT_HARMONICS,
 };
 use crate::kinematics::FaultKind;
 
@@ -44,12 +51,23 @@ pub(crate) fn combs_coincide(a_hz: f64, b_hz: f64) -> bool {
     lo > 0.0 && (a_hz - b_hz).abs() / lo < COMB_OVERLAP.value
 }
 
-/// Whether two locations' families count as one in the band search: the same kind, or the outer race
-/// and the rolling elements when their combs coincide.
+/// Whether the inner-race and 2xBSF combs read the same lines: their rates coincide, or one is twice
+/// the other (every second line of the slower comb), within [`COMB_OVERLAP`]
+/// ([`INNER_ELEMENT_SIDEBANDS`]).
+pub(crate) fn inner_element_share_lines(a_hz: f64, b_hz: f64) -> bool {
+    let (lo, hi) = (a_hz.min(b_hz), a_hz.max(b_hz));
+    combs_coincide(lo, hi) || combs_coincide(2.0 * lo, hi)
+}
+
+/// Whether two locations' families count as one in the band search: the same kind, the outer race
+/// and the rolling elements when their combs coincide, or the inner race and the rolling elements when
+/// their combs share lines ([`inner_element_share_lines`]).
 pub(crate) fn same_lines(a: FaultKind, a_hz: f64, b: FaultKind, b_hz: f64) -> bool {
-    let pair =
-        |x: FaultKind, y: FaultKind| x == FaultKind::OuterRace && y == FaultKind::RollingElement;
-    a == b || ((pair(a, b) || pair(b, a)) && combs_coincide(a_hz, b_hz))
+    let pair = |x: FaultKind, y: FaultKind| (a == x && b == y) || (a == y && b == x);
+    a == b
+        || (pair(FaultKind::OuterRace, FaultKind::RollingElement) && combs_coincide(a_hz, b_hz))
+        || (pair(FaultKind::InnerRace, FaultKind::RollingElement)
+            && inner_element_share_lines(a_hz, b_hz))
 }
 
 /// The level at which the family search counts a line (its default `line_db`).
@@ -93,6 +111,9 @@ fn resolve_coinciding(ranked: &[&Finding], cage: Option<&Finding>) -> Coinciding
     {
         return Coinciding::No;
     }
+    if best.kind == FaultKind::InnerRace || second.kind == FaultKind::InnerRace {
+        return resolve_by_sidebands(best, second);
+    }
     let gap = 100.0 * (best.defect_rate_hz - second.defect_rate_hz).abs()
         / best.defect_rate_hz.min(second.defect_rate_hz);
     let line_db = cage
@@ -128,6 +149,67 @@ fn resolve_coinciding(ranked: &[&Finding], cage: Option<&Finding>) -> Coinciding
     )
 }
 
+/// The inner race and the rolling elements on combs that share lines, neither beating the other by
+/// the margin: the lines cannot tell them apart, each family's own modulation can (±1x for a defect
+/// turning with the shaft, ±FTF for an element carried round by the cage). The one that shows its
+/// sidebands while the other shows none is named; otherwise the usual margin rule applies.
+fn resolve_by_sidebands(best: &Finding, second: &Finding) -> Coinciding {
+    let has = |f: &Finding| f64::from(f.sidebands) >= INNER_ELEMENT_SIDEBANDS.value;
+    let chosen = match (has(best), has(second)) {
+        (true, false) if second.sidebands == 0 => best,
+        (false, true) if best.sidebands == 0 => second,
+        _ => return Coinciding::No,
+    };
+    let other = if std::ptr::eq(chosen, best) {
+        second
+    } else {
+        best
+    };
+    let modulation = |f: &Finding| {
+        if f.kind == FaultKind::InnerRace {
+            "±1x"
+        } else {
+            "±FTF"
+        }
+    };
+    Coinciding::Resolved(
+        Finding {
+            score_db: best.score_db,
+            ..chosen.clone()
+        },
+        format!(
+            "; the inner-race and 2xBSF combs share lines here (BPFI {:.1} Hz, 2xBSF {:.1} Hz), and the {} family shows its {} sidebands ({}) while the {} family shows none of its {}",
+            if best.kind == FaultKind::InnerRace {
+                best.defect_rate_hz
+            } else {
+                second.defect_rate_hz
+            },
+            if best.kind == FaultKind::InnerRace {
+                second.defect_rate_hz
+            } else {
+                best.defect_rate_hz
+            },
+            chosen.fault,
+            modulation(chosen),
+            chosen.sidebands,
+            other.fault,
+            modulation(other),
+        ),
+    )
+}
+
+/// The deepest notch in the first five harmonics of a comb: how far one of the 2nd-4th harmonics
+/// stands under the mean of its two neighbours, dB (0 when there are too few harmonics).
+pub(crate) fn comb_notch_db(harmonic_db: &[f64]) -> f64 {
+    harmonic_db
+        .iter()
+        .take(5)
+        .collect::<Vec<_>>()
+        .windows(3)
+        .map(|w| 0.5 * (w[0] + w[2]) - w[1])
+        .fold(0.0, f64::max)
+}
+
 /// How the other candidate bands read: in how many the chosen family leads while present, and in how
 /// many any family is present.
 #[derive(Debug, Clone, Copy)]
@@ -136,6 +218,27 @@ pub(crate) struct Corroboration {
     pub agreeing: usize,
     /// Bands where some family is present.
     pub present: usize,
+}
+
+/// Why the other candidate bands do not bear out the chosen family ([`CORROBORATING_BANDS`],
+/// [`CORROBORATING_SHARE`]), or `None` when they do.
+fn uncorroborated(best: &Finding, c: Corroboration) -> Option<String> {
+    if (c.agreeing as f64) < CORROBORATING_BANDS.value {
+        return Some(format!(
+            "{} family at {:.1} dB shows in one candidate band only; impacts excite broad resonance regions, so a real defect shows in more than one",
+            best.fault, best.score_db
+        ));
+    }
+    (c.present > 0 && (c.agreeing as f64) < CORROBORATING_SHARE.value * c.present as f64).then(|| {
+        format!(
+            "{} family at {:.1} dB leads in only {} of the {} other candidate bands where a fault family shows (at least {:.0} % needed); one defect excites its resonance region as a whole, so bands that disagree mean the evidence does not settle the location",
+            best.fault,
+            best.score_db,
+            c.agreeing,
+            c.present,
+            100.0 * CORROBORATING_SHARE.value
+        )
+    })
 }
 
 /// Decides the location from the envelope findings (any order). `usable` names the problem of a clipped
@@ -204,6 +307,24 @@ pub(crate) fn locate(
         }
     };
     let best: &Finding = &best;
+    if best.kind == FaultKind::Cage && present(best) {
+        let notch = comb_notch_db(&best.harmonic_db);
+        if notch >= CAGE_NOTCH_DB.value {
+            let mut candidates = vec![best.fault.clone()];
+            if let Some(ball) = get(FaultKind::RollingElement) {
+                candidates.push(ball.fault.clone());
+            }
+            return LocationCall {
+                diagnosis: "unclear".to_owned(),
+                confidence: 0.25,
+                candidates,
+                reason: format!(
+                    "FTF comb at {:.1} dB with {} harmonics, but one harmonic stands {notch:.1} dB under its neighbours: the shape of a load-zone window, a damaged rolling element carried round at cage speed, as much as a cage defect, and no 2xBSF comb settles it{cage_note}",
+                    best.score_db, best.harmonics
+                ),
+            };
+        }
+    }
     let runner_db = runner.map_or(0.0, |r| r.score_db);
     let margin = best.score_db - runner_db;
     let candidates: Vec<String> = if coincide_note.is_empty() {
@@ -242,32 +363,12 @@ pub(crate) fn locate(
             ),
         };
     }
-    if corroboration.is_some_and(|c| (c.agreeing as f64) < CORROBORATING_BANDS.value) {
+    if let Some(why) = corroboration.and_then(|c| uncorroborated(best, c)) {
         return LocationCall {
             diagnosis: "unclear".to_owned(),
             confidence: 0.25,
             candidates,
-            reason: format!(
-                "{} family at {:.1} dB shows in one candidate band only; impacts excite broad resonance regions, so a real defect shows in more than one{cage_note}",
-                best.fault, best.score_db
-            ),
-        };
-    }
-    if let Some(c) = corroboration.filter(|c| {
-        c.present > 0 && (c.agreeing as f64) < CORROBORATING_SHARE.value * c.present as f64
-    }) {
-        return LocationCall {
-            diagnosis: "unclear".to_owned(),
-            confidence: 0.25,
-            candidates,
-            reason: format!(
-                "{} family at {:.1} dB leads in only {} of the {} other candidate bands where a fault family shows (at least {:.0} % needed); one defect excites its resonance region as a whole, so bands that disagree mean the evidence does not settle the location{cage_note}",
-                best.fault,
-                best.score_db,
-                c.agreeing,
-                c.present,
-                100.0 * CORROBORATING_SHARE.value
-            ),
+            reason: format!("{why}{cage_note}"),
         };
     }
     let confidence = 0.5

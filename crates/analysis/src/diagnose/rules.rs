@@ -40,6 +40,15 @@ pub const CAGE_HARMONICS: Rule = Rule {
     source: "physics (impulse train versus smooth modulation); checked on sim (ball trains modulated at FTF) and CWRU 185-188",
 };
 
+/// A notch in the FTF comb that marks load-zone modulation rather than a cage defect.
+pub const CAGE_NOTCH_DB: Rule = Rule {
+    id: "cage_comb_notch_db",
+    value: 6.0,
+    unit: "dB under the mean of its two neighbours",
+    meaning: "when one of the 2nd-4th FTF harmonics stands this far under the mean of the harmonics either side of it, the FTF comb is read as the load-zone window of a damaged rolling element carried round at cage speed, and a cage call becomes \"unclear\" (cage or rolling element)",
+    source: "physics (a damaged element is struck only while it passes the load zone, a window of a fixed share of each cage turn, about half a turn under a radial load with little clearance (from memory, rolling-bearing load-distribution texts); the Fourier series of such a window has deep minima at some harmonics, the even ones for a half turn, while a cage defect strikes once per turn, a comb without minima); checked on sim (deepest notch on a true cage reading 4.5 dB, none lost) and CWRU (ball records 187 and 188: 8.5 and 10.3 dB at the 2nd harmonic, called cage before, now unclear)",
+};
+
 /// Rolling-element evidence that explains FTF lines as ball-train modulation.
 pub const BALL_TRAIN_DB: Rule = Rule {
     id: "ball_train_support_db",
@@ -112,15 +121,26 @@ pub const COMB_OVERLAP: Rule = Rule {
     source: "physics (kinematics: for roller bearings with element/pitch diameter near 0.16, e.g. 14 rollers of 15 mm on a 92 mm pitch, BPFO and 2xBSF differ by under 2 %); checked on the demo plant (rolling-element fault on such a bearing), sim and CWRU (not triggered there: 2xBSF/BPFO = 1.31)",
 };
 
+/// Sidebands that decide between the inner race and the rolling elements on shared lines.
+pub const INNER_ELEMENT_SIDEBANDS: Rule = Rule {
+    id: "inner_element_sidebands",
+    value: 1.0,
+    unit: "sideband lines at 10 dB",
+    meaning: "when the BPFI and 2xBSF combs share lines (rates within the comb overlap of each other or of twice each other) and neither family beats the other by the margin, the one showing at least this many of its own sidebands (±1x for the inner race, ±FTF for a rolling element) while the other shows none is named (confidence at most 0.8); the two count as one family in the band search",
+    source: "physics (kinematics: BPFI can fall on 2xBSF or on its 2nd harmonic for some geometries, and then the lines fit both; the modulation differs: an inner-race defect turns with the shaft through the load zone, a damaged element is carried round at cage speed); checked on sim (readings 77, inner race on BPFI 1 % from 2xBSF, and 118, rolling element with BPFI on 2x(2xBSF), were unclear and are now right; no call lost) and CWRU (not triggered: BPFI/2xBSF = 1.15 there)",
+};
+
 /// The whole table.
-pub const LOCATION_RULES: [Rule; 12] = [
+pub const LOCATION_RULES: [Rule; 14] = [
     PRESENT_DB,
     PRESENT_HARMONICS,
     MARGIN_DB,
     CORROBORATING_BANDS,
     CORROBORATING_SHARE,
     COMB_OVERLAP,
+    INNER_ELEMENT_SIDEBANDS,
     CAGE_HARMONICS,
+    CAGE_NOTCH_DB,
     BALL_TRAIN_DB,
     TONAL_FRACTION,
     LINE_FACTOR,

@@ -383,3 +383,80 @@ fn mixed_bands_make_the_location_unclear() {
     let call = locate::locate(&findings, None, None);
     assert_eq!(call.diagnosis, "inner race", "{}", call.reason);
 }
+
+// An FTF comb with a deep minimum is the load-zone window of a damaged element, not a cage defect
+// (rules table, `cage_comb_notch_db`): CWRU ball record 187 reads [22, 13, 21, 16, 18] dB; a cage
+// impulse train on the simulator reads [28, 27, 22, 20, 20].
+#[test]
+fn an_ftf_comb_with_a_notch_is_not_called_cage() {
+    let cw = cwru_de();
+    let fr = 29.15;
+    let with_cage = |comb: Vec<f64>| {
+        vec![
+            scored(FaultKind::Cage, cw.ftf * fr, 21.6, comb),
+            scored(
+                FaultKind::RollingElement,
+                2.0 * cw.bsf * fr,
+                9.5,
+                vec![9.0, 10.0, 8.0],
+            ),
+            scored(FaultKind::InnerRace, cw.bpfi * fr, 7.0, vec![6.0, 5.0, 8.0]),
+            scored(FaultKind::OuterRace, cw.bpfo * fr, 4.0, vec![5.0, 3.0, 3.0]),
+        ]
+    };
+    let c = Some(locate::Corroboration {
+        agreeing: 12,
+        present: 13,
+    });
+    let call = locate::locate(&with_cage(vec![21.9, 13.1, 21.4, 15.6, 18.1]), None, c);
+    assert_eq!(call.diagnosis, "unclear", "{}", call.reason);
+    assert!(call.candidates.contains(&"rolling element".to_owned()));
+    assert!(call.reason.contains("load-zone"), "{}", call.reason);
+    let call = locate::locate(&with_cage(vec![28.0, 27.0, 22.0, 20.0, 20.0]), None, c);
+    assert_eq!(call.diagnosis, "cage", "{}", call.reason);
+    assert!((locate::comb_notch_db(&[21.9, 13.1, 21.4, 15.6, 18.1]) - 8.55).abs() < 1e-9);
+    assert!(locate::comb_notch_db(&[20.0, 21.0]).abs() < 1e-12);
+}
+
+// The inner race and the rolling elements on combs that share lines (rules table,
+// `inner_element_sidebands`): BPFI on the 2nd harmonic of 2xBSF, as on simulator reading 118 (2xBSF
+// 71.1 Hz, BPFI 142.7 Hz). Within the margin, the family showing its own sidebands is named.
+#[test]
+fn shared_inner_and_element_lines_are_told_apart_by_sidebands() {
+    assert!(locate::inner_element_share_lines(71.1, 142.7));
+    assert!(locate::inner_element_share_lines(380.4, 376.7));
+    let cw = cwru_de();
+    assert!(!locate::inner_element_share_lines(cw.bpfi, 2.0 * cw.bsf));
+    let with = |element_sidebands: u32, inner_sidebands: u32| {
+        let mut element = scored(
+            FaultKind::RollingElement,
+            71.1,
+            32.0,
+            vec![33.0, 31.0, 18.0],
+        );
+        element.sidebands = element_sidebands;
+        let mut inner = scored(FaultKind::InnerRace, 142.7, 29.0, vec![31.0, 26.0, 24.0]);
+        inner.sidebands = inner_sidebands;
+        vec![
+            element,
+            inner,
+            scored(FaultKind::Cage, 7.9, 13.0, vec![20.0, 6.0, 5.0]),
+            scored(FaultKind::OuterRace, 79.2, 12.0, vec![18.0, 5.0, 3.0]),
+        ]
+    };
+    let c = Some(locate::Corroboration {
+        agreeing: 13,
+        present: 13,
+    });
+    let call = locate::locate(&with(8, 0), None, c);
+    assert_eq!(call.diagnosis, "rolling element", "{}", call.reason);
+    assert!(call.confidence <= 0.8);
+    assert!(call.reason.contains("share lines"), "{}", call.reason);
+    let call = locate::locate(&with(0, 5), None, c);
+    assert_eq!(call.diagnosis, "inner race", "{}", call.reason);
+    // Both modulated, or neither: the lines and the margin decide, and 3 dB is not enough.
+    for (e, i) in [(4, 2), (0, 0)] {
+        let call = locate::locate(&with(e, i), None, c);
+        assert_eq!(call.diagnosis, "unclear", "{e}/{i}: {}", call.reason);
+    }
+}
