@@ -59,6 +59,9 @@ fn fixture() -> (BearingHistory, ReadingCache) {
             stage: None,
             damage_db: None,
             baseline: false,
+            replace_by: None,
+            end_of_life: None,
+            end_of_life_is_prior: false,
         });
         let s = ReadingSpectra {
             reading_id: id,

@@ -117,6 +117,13 @@ pub struct ReadingSummary {
     pub damage_db: Option<f64>,
     /// The analyst marked it as part of its life's baseline.
     pub baseline: bool,
+    /// The replace-by date projected at this reading (its stored record's forecast), if any.
+    pub replace_by: Option<NaiveDate>,
+    /// The end-of-life date projected at this reading, if any.
+    pub end_of_life: Option<NaiveDate>,
+    /// That end of life is only a prior (no damage growth to project: a survival prior or the finished
+    /// lives of the population), not a projection of this life's damage.
+    pub end_of_life_is_prior: bool,
 }
 
 impl ReadingSummary {

@@ -104,6 +104,9 @@ pub const NOTE_LINE: Color32 = Color32::from_rgb(0x1f, 0x7a, 0x6a);
 /// Forecast projection colour.
 pub const FORECAST: Color32 = Color32::from_rgb(0x6e, 0x43, 0xbf);
 
+/// End-of-life projections in the "how right were we" plot (replace-by ones use [`FORECAST`]).
+pub const END_OF_LIFE: Color32 = Color32::from_rgb(0xa3, 0x4a, 0x28);
+
 /// Background of the caution strip.
 pub const CAUTION_FILL: Color32 = Color32::from_rgb(0xf3, 0xec, 0xd8);
 

@@ -471,3 +471,66 @@ fn bundled_font_draws_arrows_and_the_warning_sign() {
     out.textures_delta.clear();
     assert!(!plain.fonts_mut(|f| f.has_glyph(&egui::FontId::proportional(14.0), '\u{26a0}')));
 }
+
+/// "How right were we": the dates projected at each reading, shown under the life trend when asked,
+/// and the ended life's projection scored against its replacement. The score is worked out here from
+/// the IEEE PHM 2012 challenge formula (REFERENCES.md §10: `Er = 100·(actual − predicted)/actual`,
+/// `A = exp(−ln(0.5)·Er/5)` when late), not with the project's function.
+#[test]
+fn track_record_plot_scores_the_ended_life() {
+    use common::{OLD_END_OF_LIFE, OLD_REPLACE_BY, day_s};
+    use spallcast_app::panels::track_record_ui::TOGGLE_LABEL;
+    let fx = build_fixture();
+    let mut h = harness(&fx.db, true);
+    settle(&mut h);
+    h.get_by_label(BEARING_LABEL).click();
+    h.step();
+    settle(&mut h);
+    h.get_by_label("Life trend").click();
+    h.run_steps(3);
+    assert!(h.state().trend_panel().track.is_none(), "hidden at first");
+    h.get_by_label(TOGGLE_LABEL).click();
+    h.run_steps(3);
+    let track = h
+        .state()
+        .trend_panel()
+        .track
+        .clone()
+        .expect("the plot is shown");
+    // Reading 1 (old life) and reading 4 (current life) carry forecasts.
+    assert_eq!(track.replace_by_points, 2, "{track:?}");
+    assert_eq!(track.end_of_life_points, 1, "{track:?}");
+    assert_eq!(track.lives.len(), 2, "{track:?}");
+    let old = &track.lives[0];
+    assert_eq!(
+        old.ended.map(|d| d.to_string()).as_deref(),
+        Some("2026-02-01")
+    );
+    let record = old.record.expect("the ended life is scored");
+    assert_eq!(record.scored, 1);
+    // Taken 2026-01-14 09:30 UTC; replaced 2026-02-01; projected end of life 2026-02-10.
+    let taken = day_s(DAYS[0]) + 9.5 * 3600.0;
+    let actual = day_s("2026-02-01") - taken;
+    let predicted = day_s(OLD_END_OF_LIFE) - taken;
+    let er = 100.0 * (actual - predicted) / actual;
+    assert!(er < 0.0, "the projection came late");
+    let want = (-(0.5_f64.ln()) * er / 5.0).exp();
+    let got = record.mean_end_of_life_score.unwrap();
+    assert!((got - want).abs() < 1e-9, "score {got} vs {want}");
+    // |2026-01-25 − 2026-02-01| = 7 days.
+    let rb_error = (day_s(OLD_REPLACE_BY) - day_s("2026-02-01")).abs() / 86_400.0;
+    assert!((record.median_abs_replace_by_error_days.unwrap() - rb_error).abs() < 1e-9);
+    assert!((rb_error - 7.0).abs() < 1e-9);
+    // The sentences are on screen; the current life is not scored.
+    assert!(
+        h.query_by_label(&old.sentence()).is_some(),
+        "{}",
+        old.sentence()
+    );
+    assert!(track.lives[1].ended.is_none() && track.lives[1].record.is_none());
+    assert!(
+        h.query_by_label(&track.lives[1].sentence()).is_some(),
+        "{}",
+        track.lives[1].sentence()
+    );
+}

@@ -13,8 +13,8 @@ use std::process::ExitCode;
 use anyhow::bail;
 use chrono::{DateTime, Utc};
 use serde::Serialize;
-use spallcast_analysis::forecast::{rul_percent_error, rul_score};
-use spallcast_analysis::stage::{StageOptions, median};
+use spallcast_analysis::forecast::{ProjectionAt, end_of_life_score, track_record};
+use spallcast_analysis::stage::StageOptions;
 use spallcast_model::units::unix_s_of_date;
 use spallcast_pipeline::assess::{LifeAssessment, assess_position, utc_from_s};
 
@@ -97,11 +97,10 @@ pub fn replay(bearing: &str, life: &LifeAssessment) -> LifeReplay {
                     let t_s = t.timestamp() as f64;
                     let rb = f.as_ref().and_then(|f| f.replace_by);
                     let eol = f.as_ref().and_then(|f| f.end_of_life);
-                    let score = match (replaced_s, eol) {
-                        (Some(end), Some(e)) if end > t_s => {
-                            Some(rul_score(rul_percent_error(end - t_s, e.t_s - t_s)))
-                        }
-                        _ => None,
+                    let at = ProjectionAt {
+                        t_s,
+                        replace_by_s: rb.map(|p| p.t_s),
+                        end_of_life_s: eol.map(|p| p.t_s),
                     };
                     ReplayRow {
                         taken_at: *t,
@@ -114,18 +113,26 @@ pub fn replay(bearing: &str, life: &LifeAssessment) -> LifeReplay {
                         end_of_life_error_days: replaced_s
                             .zip(eol)
                             .map(|(end, p)| (p.t_s - end) / DAY_S),
-                        end_of_life_score: score,
+                        end_of_life_score: replaced_s.and_then(|end| end_of_life_score(&at, end)),
                     }
                 })
                 .collect();
-            let scores: Vec<f64> = rows.iter().filter_map(|r| r.end_of_life_score).collect();
-            let mean_end_of_life_score =
-                (!scores.is_empty()).then(|| scores.iter().sum::<f64>() / scores.len() as f64);
-            let median_abs_replace_by_error_days = median(
-                rows.iter()
-                    .filter_map(|r| r.replace_by_error_days.map(f64::abs))
-                    .collect(),
-            );
+            let record = replaced_s.map(|end| {
+                let projections: Vec<ProjectionAt> = p
+                    .taken_at
+                    .iter()
+                    .zip(&p.forecasts)
+                    .map(|(t, f)| ProjectionAt {
+                        t_s: t.timestamp() as f64,
+                        replace_by_s: f.as_ref().and_then(|f| f.replace_by).map(|p| p.t_s),
+                        end_of_life_s: f.as_ref().and_then(|f| f.end_of_life).map(|p| p.t_s),
+                    })
+                    .collect();
+                track_record(&projections, end)
+            });
+            let mean_end_of_life_score = record.and_then(|r| r.mean_end_of_life_score);
+            let median_abs_replace_by_error_days =
+                record.and_then(|r| r.median_abs_replace_by_error_days);
             PointReplay {
                 point: p.point.clone(),
                 rows,

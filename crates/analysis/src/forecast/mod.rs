@@ -26,7 +26,9 @@ pub use degradation::{
     DegradationPrior, Fpt, LifeFacts, ModelFit, detect_fpt, fit_model, fit_prior, life_facts,
     residual_life_from_finished,
 };
-pub use score::{rul_percent_error, rul_score};
+pub use score::{
+    ProjectionAt, TrackRecord, end_of_life_score, rul_percent_error, rul_score, track_record,
+};
 pub use trend::{LineFit, Projection, fit_line, t_quantile_90};
 
 use crate::stage::rules;

@@ -24,6 +24,54 @@ pub fn rul_score(percent_error: f64) -> f64 {
     }
 }
 
+/// One projection as it was made: when, and the replace-by and end-of-life dates it gave (Unix s).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ProjectionAt {
+    /// When the reading it rests on was taken.
+    pub t_s: f64,
+    /// The replace-by date projected then.
+    pub replace_by_s: Option<f64>,
+    /// The end-of-life date projected then.
+    pub end_of_life_s: Option<f64>,
+}
+
+/// How a life's projections fared against its recorded end ([`track_record`]).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct TrackRecord {
+    /// End-of-life projections made before the end, and so scored.
+    pub scored: usize,
+    /// Their mean challenge score (1 = perfect).
+    pub mean_end_of_life_score: Option<f64>,
+    /// Median |replace-by − end| over the projections that gave one, days.
+    pub median_abs_replace_by_error_days: Option<f64>,
+}
+
+/// The challenge score of an end-of-life projection made at `t_s` against a life that ended at
+/// `end_s`: `None` when it was made at or after the end, or gave no date.
+pub fn end_of_life_score(p: &ProjectionAt, end_s: f64) -> Option<f64> {
+    let eol = p.end_of_life_s?;
+    (end_s > p.t_s).then(|| rul_score(rul_percent_error(end_s - p.t_s, eol - p.t_s)))
+}
+
+/// Scores every projection of one life against its recorded end (a replacement: when the bearing came
+/// out, not when it would have failed). Shared by `spallcast backtest` and the window.
+pub fn track_record(projections: &[ProjectionAt], end_s: f64) -> TrackRecord {
+    let scores: Vec<f64> = projections
+        .iter()
+        .filter_map(|p| end_of_life_score(p, end_s))
+        .collect();
+    let errors: Vec<f64> = projections
+        .iter()
+        .filter_map(|p| p.replace_by_s.map(|r| ((r - end_s) / 86_400.0).abs()))
+        .collect();
+    TrackRecord {
+        scored: scores.len(),
+        mean_end_of_life_score: (!scores.is_empty())
+            .then(|| scores.iter().sum::<f64>() / scores.len() as f64),
+        median_abs_replace_by_error_days: crate::stage::median(errors),
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -41,5 +89,38 @@ mod tests {
         // Er sign: predicting 80 of 100 left is 20 % early.
         assert!((rul_percent_error(100.0, 80.0) - 20.0).abs() < 1e-12);
         assert!(rul_percent_error(0.0, 1.0).is_nan());
+    }
+
+    // A life that ended 100 days after the first projection: predicting 100 is perfect (score 1),
+    // 80 left at the same time is 20 % early (score 0.5, reference sheet section 10); a projection made
+    // after the end is not scored. Replace-by errors 10 and 30 days: median 20.
+    #[test]
+    fn track_record_scores_projections_made_before_the_end() {
+        let day = 86_400.0;
+        let end = 100.0 * day;
+        let rows = [
+            ProjectionAt {
+                t_s: 0.0,
+                replace_by_s: Some(90.0 * day),
+                end_of_life_s: Some(100.0 * day),
+            },
+            ProjectionAt {
+                t_s: 0.0,
+                replace_by_s: Some(130.0 * day),
+                end_of_life_s: Some(80.0 * day),
+            },
+            ProjectionAt {
+                t_s: 120.0 * day,
+                replace_by_s: None,
+                end_of_life_s: Some(150.0 * day),
+            },
+        ];
+        let r = track_record(&rows, end);
+        assert_eq!(r.scored, 2);
+        assert!((r.mean_end_of_life_score.unwrap() - 0.75).abs() < 1e-12);
+        assert!((r.median_abs_replace_by_error_days.unwrap() - 20.0).abs() < 1e-9);
+        assert_eq!(end_of_life_score(&rows[2], end), None);
+        let none = track_record(&[], end);
+        assert_eq!((none.scored, none.mean_end_of_life_score), (0, None));
     }
 }

@@ -33,7 +33,7 @@ const VELOCITY_KEYS: [&str; 1] = [keys::VELOCITY_RMS_MM_S];
 const DAY_S: f64 = 86_400.0;
 
 /// Width of both plots' value axes, so their time axes line up.
-const Y_AXIS_WIDTH: f32 = 56.0;
+pub(crate) const Y_AXIS_WIDTH: f32 = 56.0;
 
 /// Legend name of the damage index series (the quantity the forecast projects).
 pub const DAMAGE_SERIES: &str = "damage index (forecast basis)";
@@ -79,18 +79,22 @@ pub struct TrendPanel {
     pub summary: TrendFrameSummary,
     /// Display units (set by the app from the saved choice before each frame).
     pub units: crate::settings::UnitPrefs,
+    /// Whether the "how right were we" plot is shown under the trend.
+    pub show_track_record: bool,
+    /// What that plot drew in the last frame (`None` while hidden).
+    pub track: Option<super::track_record_ui::TrackFrameSummary>,
 }
 
-fn day_of(r: &ReadingSummary) -> f64 {
+pub(crate) fn day_of(r: &ReadingSummary) -> f64 {
     r.taken_at.timestamp() as f64 / DAY_S
 }
 
-fn date_x(d: NaiveDate) -> f64 {
+pub(crate) fn date_x(d: NaiveDate) -> f64 {
     d.and_hms_opt(0, 0, 0)
         .map_or(0.0, |t| t.and_utc().timestamp() as f64 / DAY_S)
 }
 
-fn date_label(x: f64) -> String {
+pub(crate) fn date_label(x: f64) -> String {
     DateTime::from_timestamp((x * DAY_S) as i64, 0)
         .map_or_else(String::new, |t| t.format("%Y-%m-%d").to_string())
 }
@@ -175,6 +179,44 @@ pub fn indicator_colour(key: &str) -> egui::Color32 {
 }
 
 impl TrendPanel {
+    /// The point chooser, the indicator checkboxes and the "how right were we" toggle.
+    fn controls(
+        &mut self,
+        ui: &mut egui::Ui,
+        chosen: &mut Vec<String>,
+        points: &[String],
+        present: &[(&str, &str)],
+    ) {
+        ui.horizontal_wrapped(|ui| {
+            ui.label("Point:");
+            let current = self.point.clone().unwrap_or_default();
+            egui::ComboBox::from_id_salt("trend-point")
+                .selected_text(&current)
+                .show_ui(ui, |ui| {
+                    for p in points {
+                        if ui.selectable_label(*p == current, p.as_str()).clicked() {
+                            self.point = Some(p.clone());
+                        }
+                    }
+                });
+            ui.label("Indicators:");
+            for (key, label) in present {
+                let mut on = chosen.iter().any(|c| c == key);
+                if ui.checkbox(&mut on, *label).changed() {
+                    if on {
+                        chosen.push((*key).to_owned());
+                    } else {
+                        chosen.retain(|c| c != key);
+                    }
+                }
+            }
+        });
+        ui.checkbox(
+            &mut self.show_track_record,
+            super::track_record_ui::TOGGLE_LABEL,
+        );
+    }
+
     /// Draws the view.
     pub fn ui(&mut self, ui: &mut egui::Ui, chosen: &mut Vec<String>, history: &BearingHistory) {
         if self.bearing.as_ref() != Some(&history.key) {
@@ -190,30 +232,7 @@ impl TrendPanel {
         if chosen.is_empty() {
             chosen.extend(DEFAULT_INDICATORS.iter().map(|k| (*k).to_owned()));
         }
-        ui.horizontal_wrapped(|ui| {
-            ui.label("Point:");
-            let current = self.point.clone().unwrap_or_default();
-            egui::ComboBox::from_id_salt("trend-point")
-                .selected_text(&current)
-                .show_ui(ui, |ui| {
-                    for p in &points {
-                        if ui.selectable_label(*p == current, p.as_str()).clicked() {
-                            self.point = Some(p.clone());
-                        }
-                    }
-                });
-            ui.label("Indicators:");
-            for (key, label) in &present {
-                let mut on = chosen.iter().any(|c| c == key);
-                if ui.checkbox(&mut on, *label).changed() {
-                    if on {
-                        chosen.push((*key).to_owned());
-                    } else {
-                        chosen.retain(|c| c != key);
-                    }
-                }
-            }
-        });
+        self.controls(ui, chosen, &points, &present);
         if present.is_empty() {
             ui.label("These readings carry no stage indicators (they were analysed without the stage scalars).");
         }
@@ -226,7 +245,8 @@ impl TrendPanel {
         };
         let readings: Vec<&ReadingSummary> = history.readings_of(&point).collect();
         let link = egui::Id::unique("trend-x-link");
-        let height = ((ui.available_height() - 8.0) * 0.6).max(140.0);
+        let share = if self.show_track_record { 0.45 } else { 0.6 };
+        let height = ((ui.available_height() - 8.0) * share).max(140.0);
         let mut summary = TrendFrameSummary::default();
         // The forecast rests on the current life's newest reading at this point.
         let current_life = history.lives_started.last().copied();
@@ -318,7 +338,19 @@ impl TrendPanel {
                     &mut summary,
                 );
             });
-        summary.zone_lines = velocity_ui(ui, history, &readings, link, self.units);
+        let track_height = self
+            .show_track_record
+            .then(|| ((ui.available_height() - 8.0) * 0.55).max(120.0));
+        summary.zone_lines = velocity_ui(
+            ui,
+            history,
+            &readings,
+            link,
+            self.units,
+            track_height.map(|h| h + 60.0),
+        );
+        self.track =
+            track_height.map(|h| super::track_record_ui::ui(ui, history, &readings, link, h));
         self.summary = summary;
     }
 }
@@ -424,6 +456,7 @@ fn velocity_ui(
     readings: &[&ReadingSummary],
     link: egui::Id,
     units: crate::settings::UnitPrefs,
+    leave: Option<f32>,
 ) -> bool {
     let Some(key) = VELOCITY_KEYS
         .iter()
@@ -441,7 +474,7 @@ fn velocity_ui(
     let support = history.iso_support;
     let mut drawn = false;
     Plot::new(("trend-velocity", &history.key))
-        .height((ui.available_height() - 4.0).max(100.0))
+        .height((ui.available_height() - 4.0 - leave.unwrap_or(0.0)).max(100.0))
         .legend(Legend::default().position(Corner::LeftTop))
         .link_axis(link, egui::Vec2b::new(true, false))
         .y_axis_min_width(Y_AXIS_WIDTH)

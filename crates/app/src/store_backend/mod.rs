@@ -13,7 +13,7 @@ mod spectra;
 pub use spectra::compute_spectra;
 
 use anyhow::Context as _;
-use spallcast_analysis::forecast::Lubrication;
+use spallcast_analysis::forecast::{EolBasis, Forecast, Lubrication, Projection};
 use spallcast_analysis::record::StageRecord;
 use spallcast_analysis::{FaultFactors, MachineGroup, SpectrumEngine, Support};
 use spallcast_model::units::date_of_unix_s;
@@ -22,9 +22,8 @@ use spallcast_store::{ReadingAnalyzer, Store};
 
 use crate::model::{
     Annotation, AreaNode, Attention, BearingHistory, BearingKey, BearingNode, ChangedBearing,
-    DueBearing, ForecastView, ImportProgress, ImportSummary, MachineNode, NoteView, PlantTree,
-    ReadingId, ReadingSpectra, ReadingSummary, RejectedFile, StageCallView, UpdateProgress,
-    Waveform,
+    DueBearing, ImportProgress, ImportSummary, MachineNode, NoteView, PlantTree, ReadingId,
+    ReadingSpectra, ReadingSummary, RejectedFile, StageCallView, UpdateProgress, Waveform,
 };
 use crate::source::{Backend, PlantSource};
 
@@ -392,11 +391,29 @@ impl PlantSource for StoreSource {
                 .unwrap_or_default();
             let call = self.stage_of(meta.id)?;
             let stage = call.as_ref().map(|c| c.stage);
-            let damage_db = call
+            let record = call.as_ref().and_then(record_of);
+            let damage_db = record
                 .as_ref()
-                .and_then(record_of)
                 .map(|r| r.call.damage_index_db)
                 .filter(|d| d.is_finite());
+            let projected = |pick: fn(&Forecast) -> Option<Projection>| {
+                record
+                    .as_ref()
+                    .and_then(|r| r.forecast.as_ref())
+                    .and_then(pick)
+                    .and_then(|p| date_of_unix_s(p.t_s))
+            };
+            let replace_by = projected(|f| f.replace_by);
+            let end_of_life = projected(|f| f.end_of_life);
+            let end_of_life_is_prior = record
+                .as_ref()
+                .and_then(|r| r.forecast.as_ref())
+                .is_some_and(|f| {
+                    matches!(
+                        f.end_of_life_basis,
+                        EolBasis::SurvivalPrior | EolBasis::FinishedLives
+                    )
+                });
             let baseline = meta.baseline;
             readings.push(ReadingSummary {
                 id: meta.id,
@@ -407,6 +424,9 @@ impl PlantSource for StoreSource {
                 stage,
                 damage_db,
                 baseline,
+                replace_by,
+                end_of_life,
+                end_of_life_is_prior,
             });
         }
         readings.sort_by_key(|r| r.taken_at);
@@ -572,27 +592,8 @@ fn list_or_none(items: &[String]) -> String {
     }
 }
 
-/// The typed stage record of a stored call; `None` when the call holds no record of the current
-/// schema (written by another program or an older build: only its stage number is shown).
-pub fn record_of(call: &spallcast_store::StageCall) -> Option<StageRecord> {
-    serde_json::from_value::<StageRecord>(call.evidence.clone())
-        .ok()
-        .filter(StageRecord::is_current)
-}
-
-/// The window's view of a record's forecast: the `replace_by` projection as dates (the interval's
-/// ends fall back to the central date when open). `None` without a `replace_by`.
-pub fn forecast_from(record: &StageRecord) -> Option<ForecastView> {
-    let forecast = record.forecast.as_ref()?;
-    let p = forecast.replace_by?;
-    let central = date_of_unix_s(p.t_s)?;
-    Some(ForecastView {
-        replace_by: central,
-        earliest: date_of_unix_s(p.lo_s).unwrap_or(central),
-        latest: p.hi_s.and_then(date_of_unix_s).unwrap_or(central),
-        risk_from: forecast.risk_from.and_then(|r| date_of_unix_s(r.t_s)),
-    })
-}
+mod records;
+pub use records::{forecast_from, record_of};
 
 #[cfg(test)]
 mod tests;

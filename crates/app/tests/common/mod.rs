@@ -166,6 +166,16 @@ pub fn build_fixture() -> Fixture {
     for (i, id) in de_readings.iter().enumerate() {
         let evidence = if i == 3 {
             stage_record(STAGES[i], EVIDENCE, Some((REPLACE_BY, RISK_FROM)))
+        } else if i == 0 {
+            // The old life's projection, scored against its replacement by the "how right were we"
+            // plot.
+            let mut r = stage_record(
+                STAGES[i],
+                "stage 3 at reading 1",
+                Some((OLD_REPLACE_BY, OLD_RISK_FROM)),
+            );
+            r["forecast"]["end_of_life"] = projection(OLD_END_OF_LIFE);
+            r
         } else {
             stage_record(
                 STAGES[i],
@@ -184,20 +194,33 @@ pub fn build_fixture() -> Fixture {
     }
 }
 
+/// Dates projected at the old life's only reading (2026-01-14; the bearing was replaced on
+/// 2026-02-01): replace by, risk from, end of life.
+pub const OLD_REPLACE_BY: &str = "2026-01-25";
+/// See [`OLD_REPLACE_BY`].
+pub const OLD_RISK_FROM: &str = "2026-02-05";
+/// See [`OLD_REPLACE_BY`].
+pub const OLD_END_OF_LIFE: &str = "2026-02-10";
+
+/// Midnight UTC of a day, Unix seconds.
+pub fn day_s(day: &str) -> f64 {
+    chrono::NaiveDate::parse_from_str(day, "%Y-%m-%d")
+        .unwrap()
+        .and_hms_opt(0, 0, 0)
+        .unwrap()
+        .and_utc()
+        .timestamp() as f64
+}
+
+/// A stored projection of a day (central estimate and interval all on it).
+fn projection(day: &str) -> serde_json::Value {
+    serde_json::json!({ "t_s": day_s(day), "lo_s": day_s(day), "hi_s": day_s(day) })
+}
+
 /// A stage record as the pipeline stores it (`spallcast_analysis::record::StageRecord`, schema 1):
 /// one evidence sentence and, optionally, a forecast with `replace_by` and `risk_from` dates (midnight
 /// UTC, central estimates).
 fn stage_record(stage: u8, evidence: &str, dates: Option<(&str, &str)>) -> serde_json::Value {
-    let t = |day: &str| {
-        chrono::NaiveDate::parse_from_str(day, "%Y-%m-%d")
-            .unwrap()
-            .and_hms_opt(0, 0, 0)
-            .unwrap()
-            .and_utc()
-            .timestamp() as f64
-    };
-    let projection =
-        |day: &str| serde_json::json!({ "t_s": t(day), "lo_s": t(day), "hi_s": t(day) });
     let forecast = dates.map(|(replace_by, risk_from)| {
         serde_json::json!({ "as_of_s": 0.0, "stage": stage, "location": "outer race",
             "confidence": 0.8, "evidence": [evidence], "replace_by": projection(replace_by),
