@@ -11,7 +11,8 @@
 mod common;
 
 use common::{
-    BEARING_LABEL, BPFO_ORDERS, DAYS, EVIDENCE, RPM, STAGES, build_fixture, harness, retype, settle,
+    BEARING_LABEL, BPFO_ORDERS, DAYS, EVIDENCE, RPM, STAGES, build_fixture, harness,
+    harness_on_bearing, retype, settle,
 };
 use eframe::egui;
 use egui_kittest::kittest::Queryable;
@@ -91,11 +92,7 @@ fn plant_tree_shows_bearings_with_their_latest_stage() {
 #[test]
 fn select_bearing_add_month_and_toggle_fault_markers() {
     let fx = build_fixture();
-    let mut h = harness(&fx.db, true);
-    settle(&mut h);
-    h.get_by_label(BEARING_LABEL).click();
-    h.step();
-    settle(&mut h);
+    let mut h = harness_on_bearing(&fx.db);
     assert_eq!(h.state().selected_bearing(), Some(&de_key()));
     assert_eq!(h.state().state.view, View::Spectra);
     let ids = &fx.de_readings;
@@ -195,11 +192,7 @@ fn select_bearing_add_month_and_toggle_fault_markers() {
 #[test]
 fn evidence_trend_and_waveform_views_show_the_bearing() {
     let fx = build_fixture();
-    let mut h = harness(&fx.db, true);
-    settle(&mut h);
-    h.get_by_label(BEARING_LABEL).click();
-    h.step();
-    settle(&mut h);
+    let mut h = harness_on_bearing(&fx.db);
     // The latest call's evidence sentence is beside the plots.
     let history = h.state().history().unwrap();
     assert_eq!(
@@ -481,11 +474,7 @@ fn track_record_plot_scores_the_ended_life() {
     use common::{OLD_END_OF_LIFE, OLD_REPLACE_BY, day_s};
     use spallcast_app::panels::track_record_ui::TOGGLE_LABEL;
     let fx = build_fixture();
-    let mut h = harness(&fx.db, true);
-    settle(&mut h);
-    h.get_by_label(BEARING_LABEL).click();
-    h.step();
-    settle(&mut h);
+    let mut h = harness_on_bearing(&fx.db);
     h.get_by_label("Life trend").click();
     h.run_steps(3);
     assert!(h.state().trend_panel().track.is_none(), "hidden at first");

@@ -10,8 +10,8 @@
 mod common;
 
 use common::{
-    BEARING_LABEL, LIFT_OUTAGE, REPLACE_BY, RISK_FROM, RPM, build_fixture, drag_and_drop, harness,
-    harness_on, settle,
+    LIFT_OUTAGE, REPLACE_BY, RISK_FROM, RPM, build_fixture, drag_and_drop, harness, harness_on,
+    harness_on_bearing, settle,
 };
 use eframe::egui;
 use egui_kittest::kittest::Queryable;
@@ -26,11 +26,7 @@ fn notes_and_baseline_marks_are_stored_and_shown() {
         ADD_NOTE_BUTTON, CLEAR_BASELINE_BUTTON, MARK_BASELINE_BUTTON, NOTE_FIELD_LABEL,
     };
     let fx = build_fixture();
-    let mut h = harness(&fx.db, true);
-    settle(&mut h);
-    h.get_by_label(BEARING_LABEL).click();
-    h.step();
-    settle(&mut h);
+    let mut h = harness_on_bearing(&fx.db);
     h.get_by_label("Life trend").click();
     settle(&mut h);
     h.get_by_role_and_label(egui::Role::TextInput, NOTE_FIELD_LABEL)
@@ -58,11 +54,7 @@ fn notes_and_baseline_marks_are_stored_and_shown() {
     );
     // The store holds it: a second window reads it back.
     drop(h);
-    let mut h = harness(&fx.db, true);
-    settle(&mut h);
-    h.get_by_label(BEARING_LABEL).click();
-    h.step();
-    settle(&mut h);
+    let mut h = harness_on_bearing(&fx.db);
     assert_eq!(h.state().history().unwrap().notes.len(), 1);
 
     // Baseline: the spectra overlay's readings become the baseline.

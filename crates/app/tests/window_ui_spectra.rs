@@ -9,7 +9,7 @@
 
 mod common;
 
-use common::{BEARING_LABEL, BPFO_ORDERS, RPM, build_fixture, harness, retype, settle};
+use common::{BPFO_ORDERS, RPM, build_fixture, harness_on_bearing, retype, settle};
 use eframe::egui;
 use egui_kittest::kittest::Queryable;
 use spallcast_app::path_prompt::PATH_FIELD_LABEL;
@@ -20,11 +20,7 @@ use spallcast_app::path_prompt::PATH_FIELD_LABEL;
 #[test]
 fn spectra_open_on_the_defect_region() {
     let fx = build_fixture();
-    let mut h = harness(&fx.db, true);
-    settle(&mut h);
-    h.get_by_label(BEARING_LABEL).click();
-    h.step();
-    settle(&mut h);
+    let mut h = harness_on_bearing(&fx.db);
     h.get_by_label("Envelope").click();
     h.step();
     settle(&mut h);
@@ -77,11 +73,7 @@ fn spectra_open_on_the_defect_region() {
 fn unit_preferences_redraw_the_spectra() {
     use spallcast_app::settings::{AccelUnit, UNITS_MENU, VelocityUnit};
     let fx = build_fixture();
-    let mut h = harness(&fx.db, true);
-    settle(&mut h);
-    h.get_by_label(BEARING_LABEL).click();
-    h.step();
-    settle(&mut h);
+    let mut h = harness_on_bearing(&fx.db);
     h.run_steps(3);
     let g_top = h.state().spectra_panel().summary.y_top;
     assert!(g_top > 0.0, "{g_top}");
@@ -156,11 +148,7 @@ fn save_plot_writes_a_png_of_the_plot_and_a_valid_svg() {
     use spallcast_app::plot_export::EXPORT_BUTTON;
     let fx = build_fixture();
     let out = tempfile::tempdir().unwrap();
-    let mut h = harness(&fx.db, true);
-    settle(&mut h);
-    h.get_by_label(BEARING_LABEL).click();
-    h.step();
-    settle(&mut h);
+    let mut h = harness_on_bearing(&fx.db);
     h.run_steps(3);
 
     // Refused: the plant database itself as the target.
@@ -273,11 +261,7 @@ fn save_plot_writes_a_png_of_the_plot_and_a_valid_svg() {
 #[test]
 fn the_amplitude_axis_fits_the_curves_and_does_not_creep() {
     let fx = build_fixture();
-    let mut h = harness(&fx.db, true);
-    settle(&mut h);
-    h.get_by_label(BEARING_LABEL).click();
-    h.step();
-    settle(&mut h);
+    let mut h = harness_on_bearing(&fx.db);
     h.run_steps(5);
     let first = h.state().spectra_panel().summary.view_top;
     h.run_steps(60);

@@ -304,6 +304,16 @@ pub fn harness_on(
 }
 
 /// Steps the harness until no background work is in flight (bounded), then a few frames more.
+/// A harness on the fixture database with the cautions read and the test bearing selected.
+pub fn harness_on_bearing(db: &Path) -> Harness<'static, SpallcastApp> {
+    let mut h = harness(db, true);
+    settle(&mut h);
+    h.get_by_label(BEARING_LABEL).click();
+    h.step();
+    settle(&mut h);
+    h
+}
+
 pub fn settle(harness: &mut Harness<'static, SpallcastApp>) {
     for _ in 0..3000 {
         harness.step();
