@@ -357,7 +357,7 @@ fn pronostia_stage_calls_do_not_depend_on_reading_density() {
 // the constant remaining life that scores best on the other five at the same cuts. Both are scored
 // with the PHM 2012 challenge score (reference sheet section 10, from memory) at each cut.
 #[test]
-fn pronostia_leave_one_out_end_of_life_beats_a_constant_guess() {
+fn pronostia_leave_one_out_end_of_life_against_a_constant_guess() {
     let Some(lives) = all_lives() else {
         skip_message();
         return;
