@@ -144,6 +144,8 @@ pub struct SpectrumEngine {
     complex: FftPlanner<f64>,
     /// Single-precision plans, for ranking candidate demodulation bands (never for reported values).
     complex32: FftPlanner<f32>,
+    /// See `complex32`.
+    real32: RealFftPlanner<f32>,
     windows: HashMap<(Window, usize), Arc<[f64]>>,
 }
 
@@ -168,6 +170,7 @@ impl SpectrumEngine {
             real: RealFftPlanner::new(),
             complex: FftPlanner::new(),
             complex32: FftPlanner::new(),
+            real32: RealFftPlanner::new(),
             windows: HashMap::new(),
         }
     }
@@ -206,6 +209,22 @@ impl SpectrumEngine {
     /// rounding (~1e-7 relative) cannot matter, such as ranking candidate bands.
     pub fn fft_in_place_f32(&mut self, buf: &mut [Complex<f32>], inverse: bool) {
         planned_fft_in_place(&mut self.complex32, buf, inverse);
+    }
+
+    /// Unnormalised real FFT in single precision (for ranking only, like [`Self::fft_in_place_f32`]):
+    /// `input` is used as scratch; `input.len()/2 + 1` bins.
+    pub(crate) fn rfft_f32(&mut self, input: &mut [f32]) -> Vec<Complex<f32>> {
+        let n = input.len();
+        if n == 0 {
+            return Vec::new();
+        }
+        let plan = self.real32.plan_fft_forward(n);
+        let mut out = plan.make_output_vec();
+        // Lengths come from the plan itself, so processing cannot fail.
+        if plan.process(input, &mut out).is_err() {
+            out.fill(Complex::new(0.0, 0.0));
+        }
+        out
     }
 
     /// Welch-averaged one-sided power estimate of `x` sampled at `fs_hz`.
