@@ -146,6 +146,10 @@ pub struct SpectrumEngine {
     complex32: FftPlanner<f32>,
     /// See `complex32`.
     real32: RealFftPlanner<f32>,
+    /// FFT scratch space kept between calls (a fresh one per call costs page faults on long FFTs).
+    scratch64: Vec<Complex<f64>>,
+    /// See `scratch64`.
+    scratch32: Vec<Complex<f32>>,
     windows: HashMap<(Window, usize), Arc<[f64]>>,
 }
 
@@ -171,6 +175,8 @@ impl SpectrumEngine {
             complex: FftPlanner::new(),
             complex32: FftPlanner::new(),
             real32: RealFftPlanner::new(),
+            scratch64: Vec::new(),
+            scratch32: Vec::new(),
             windows: HashMap::new(),
         }
     }
@@ -193,8 +199,12 @@ impl SpectrumEngine {
         let plan = self.real.plan_fft_forward(n);
         let mut input = x.to_vec();
         let mut out = plan.make_output_vec();
+        let scratch = sized(&mut self.scratch64, plan.get_scratch_len());
         // Lengths come from the plan itself, so processing cannot fail.
-        if plan.process(&mut input, &mut out).is_err() {
+        if plan
+            .process_with_scratch(&mut input, &mut out, scratch)
+            .is_err()
+        {
             out.fill(Complex::new(0.0, 0.0));
         }
         out
@@ -202,13 +212,13 @@ impl SpectrumEngine {
 
     /// In-place unnormalised complex FFT (forward, or inverse without the 1/N factor).
     pub fn fft_in_place(&mut self, buf: &mut [Complex<f64>], inverse: bool) {
-        planned_fft_in_place(&mut self.complex, buf, inverse);
+        planned_fft_in_place(&mut self.complex, &mut self.scratch64, buf, inverse);
     }
 
     /// [`Self::fft_in_place`] in single precision: about twice the speed, for intermediate values whose
     /// rounding (~1e-7 relative) cannot matter, such as ranking candidate bands.
     pub fn fft_in_place_f32(&mut self, buf: &mut [Complex<f32>], inverse: bool) {
-        planned_fft_in_place(&mut self.complex32, buf, inverse);
+        planned_fft_in_place(&mut self.complex32, &mut self.scratch32, buf, inverse);
     }
 
     /// Unnormalised real FFT in single precision (for ranking only, like [`Self::fft_in_place_f32`]):
@@ -220,8 +230,9 @@ impl SpectrumEngine {
         }
         let plan = self.real32.plan_fft_forward(n);
         let mut out = plan.make_output_vec();
+        let scratch = sized(&mut self.scratch32, plan.get_scratch_len());
         // Lengths come from the plan itself, so processing cannot fail.
-        if plan.process(input, &mut out).is_err() {
+        if plan.process_with_scratch(input, &mut out, scratch).is_err() {
             out.fill(Complex::new(0.0, 0.0));
         }
         out
@@ -445,6 +456,7 @@ pub(crate) fn check_finite(x: &[f64]) -> Result<(), AnalysisError> {
 /// One in-place complex FFT with a plan from `planner` (cached there), at either precision.
 fn planned_fft_in_place<T: rustfft::FftNum>(
     planner: &mut FftPlanner<T>,
+    scratch: &mut Vec<Complex<T>>,
     buf: &mut [Complex<T>],
     inverse: bool,
 ) {
@@ -456,7 +468,16 @@ fn planned_fft_in_place<T: rustfft::FftNum>(
     } else {
         planner.plan_fft_forward(buf.len())
     };
-    plan.process(buf);
+    let scratch = sized(scratch, plan.get_inplace_scratch_len());
+    plan.process_with_scratch(buf, scratch);
+}
+
+/// The first `len` entries of `scratch`, grown (with zeros) when it is shorter.
+fn sized<T: rustfft::FftNum>(scratch: &mut Vec<Complex<T>>, len: usize) -> &mut [Complex<T>] {
+    if scratch.len() < len {
+        scratch.resize(len, Complex::new(T::zero(), T::zero()));
+    }
+    &mut scratch[..len]
 }
 
 /// Largest length ≤ `n` whose only prime factors are 2, 3 and 5 (fast FFT sizes).
