@@ -371,8 +371,11 @@ pub fn limited_squared_envelope_spectrum(
         }
     }
     let mean = sq.iter().sum::<f64>() / m as f64;
-    let mut e: Vec<Complex<f64>> = sq.iter().map(|p| Complex::new(p - mean, 0.0)).collect();
-    engine.fft_in_place(&mut e, false);
+    for v in &mut sq {
+        *v -= mean;
+    }
+    // The squared envelope is real: its real transform holds the same lines.
+    let e = engine.rfft(&sq);
     let lines = (hi_hz - lo_hz) / sig.freq_step_hz();
     let keep = (lines.floor() as usize).clamp(1, m / 2);
     let values = e[..keep]
