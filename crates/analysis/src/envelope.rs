@@ -158,20 +158,27 @@ impl PreparedSignal {
         oversample: usize,
     ) -> Result<(Vec<Complex<f64>>, f64), AnalysisError> {
         let (k_lo, k_hi) = self.bin_range(lo_hz, hi_hz)?;
-        let k = k_hi - k_lo + 1;
-        let m = fast_len_at_least(k * oversample.max(1));
+        let m = fast_len_at_least((k_hi - k_lo + 1) * oversample.max(1));
         let mut buf = vec![Complex::new(0.0, 0.0); m];
-        let taper_len = ((k as f64 * EDGE_TAPER) as usize).max(1);
-        let scale = 2.0 / self.n as f64;
-        for (i, (b, s)) in buf.iter_mut().zip(&self.spec[k_lo..=k_hi]).enumerate() {
-            *b = *s * (edge_weight(i, k, taper_len) * scale);
+        for (b, c) in buf.iter_mut().zip(self.tapered_lines(k_lo, k_hi)) {
+            *b = c;
         }
         engine.fft_in_place(&mut buf, true);
         Ok((buf, self.fs_hz * m as f64 / self.n as f64))
     }
-}
 
-impl PreparedSignal {
+    /// Lines `k_lo..=k_hi` of the record's spectrum with the band's raised-cosine edge taper and the
+    /// one-sided scale (`2/N`): the band of an analytic signal, ready for an inverse FFT.
+    fn tapered_lines(&self, k_lo: usize, k_hi: usize) -> impl Iterator<Item = Complex<f64>> + '_ {
+        let k = k_hi - k_lo + 1;
+        let taper_len = ((k as f64 * EDGE_TAPER) as usize).max(1);
+        let scale = 2.0 / self.n as f64;
+        self.spec[k_lo..=k_hi]
+            .iter()
+            .enumerate()
+            .map(move |(i, s)| *s * (edge_weight(i, k, taper_len) * scale))
+    }
+
     /// [`Self::band_signal`] at critical rate (`oversample` 1) in single precision, for the
     /// kurtogram's spectral kurtosis: its rounding (~1e-7 relative) cannot move a cell's SK visibly.
     fn band_signal_f32(
@@ -181,13 +188,8 @@ impl PreparedSignal {
         hi_hz: f64,
     ) -> Result<Vec<Complex<f32>>, AnalysisError> {
         let (k_lo, k_hi) = self.bin_range(lo_hz, hi_hz)?;
-        let k = k_hi - k_lo + 1;
-        let m = fast_len_at_least(k);
-        let mut buf = vec![Complex::<f32>::new(0.0, 0.0); m];
-        let taper_len = ((k as f64 * EDGE_TAPER) as usize).max(1);
-        let scale = 2.0 / self.n as f64;
-        for (i, (b, s)) in buf.iter_mut().zip(&self.spec[k_lo..=k_hi]).enumerate() {
-            let c = *s * (edge_weight(i, k, taper_len) * scale);
+        let mut buf = vec![Complex::<f32>::new(0.0, 0.0); fast_len_at_least(k_hi - k_lo + 1)];
+        for (b, c) in buf.iter_mut().zip(self.tapered_lines(k_lo, k_hi)) {
             *b = Complex::new(c.re as f32, c.im as f32);
         }
         engine.fft_in_place_f32(&mut buf, true);
@@ -197,16 +199,16 @@ impl PreparedSignal {
 
 /// [`spectral_kurtosis`] of a single-precision envelope, accumulated in double precision.
 fn spectral_kurtosis_f32(z: &[Complex<f32>]) -> f64 {
-    let (mut m2, mut m4) = (0.0, 0.0);
-    for c in z {
-        let p = f64::from(c.norm_sqr());
-        m2 += p;
-        m4 += p * p;
-    }
-    if z.is_empty() || m2 <= 0.0 {
+    sk_of_powers(z.iter().map(|c| f64::from(c.norm_sqr())))
+}
+
+/// ⟨p²⟩/⟨p⟩² − 2 of the powers `p = |z|²` (see [`spectral_kurtosis`]); 0 for none or all zero.
+fn sk_of_powers(powers: impl ExactSizeIterator<Item = f64>) -> f64 {
+    let n = powers.len() as f64;
+    let (m2, m4) = powers.fold((0.0, 0.0), |(m2, m4), p| (m2 + p, m4 + p * p));
+    if n == 0.0 || m2 <= 0.0 {
         return 0.0;
     }
-    let n = z.len() as f64;
     (m4 / n) / ((m2 / n) * (m2 / n)) - 2.0
 }
 
@@ -223,17 +225,7 @@ fn edge_weight(i: usize, k: usize, taper_len: usize) -> f64 {
 /// Spectral kurtosis of a complex envelope: ⟨|z|⁴⟩/⟨|z|²⟩² − 2 (0 for complex Gaussian noise, −1 for a
 /// pure tone, positive for impulsive content). Returns 0 for an empty or all-zero input.
 pub fn spectral_kurtosis(z: &[Complex<f64>]) -> f64 {
-    let (mut m2, mut m4) = (0.0, 0.0);
-    for c in z {
-        let p = c.norm_sqr();
-        m2 += p;
-        m4 += p * p;
-    }
-    if z.is_empty() || m2 <= 0.0 {
-        return 0.0;
-    }
-    let n = z.len() as f64;
-    (m4 / n) / ((m2 / n) * (m2 / n)) - 2.0
+    sk_of_powers(z.iter().map(Complex::norm_sqr))
 }
 
 /// Limits of the kurtogram band search.
@@ -422,11 +414,8 @@ pub fn ranking_envelope_spectrum(
     };
     let keep = full_keep.min(reach);
     let m = full_len;
-    let taper_len = ((k as f64 * EDGE_TAPER) as usize).max(1);
-    let scale = 2.0 / sig.n as f64;
     let mut buf = vec![Complex::<f32>::new(0.0, 0.0); m];
-    for (i, (b, s)) in buf.iter_mut().zip(&sig.spec[k_lo..=k_hi]).enumerate() {
-        let c = *s * (edge_weight(i, k, taper_len) * scale);
+    for (b, c) in buf.iter_mut().zip(sig.tapered_lines(k_lo, k_hi)) {
         *b = Complex::new(c.re as f32, c.im as f32);
     }
     engine.fft_in_place_f32(&mut buf, true);

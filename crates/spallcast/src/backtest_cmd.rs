@@ -88,48 +88,36 @@ pub fn replay(bearing: &str, life: &LifeAssessment) -> LifeReplay {
         .points
         .iter()
         .map(|p| {
+            let projections: Vec<ProjectionAt> = p
+                .taken_at
+                .iter()
+                .zip(&p.forecasts)
+                .map(|(t, f)| ProjectionAt {
+                    t_s: t.timestamp() as f64,
+                    replace_by_s: f.as_ref().and_then(|f| f.replace_by).map(|p| p.t_s),
+                    end_of_life_s: f.as_ref().and_then(|f| f.end_of_life).map(|p| p.t_s),
+                })
+                .collect();
             let rows: Vec<ReplayRow> = p
                 .calls
                 .iter()
                 .zip(&p.taken_at)
-                .zip(&p.forecasts)
-                .map(|((call, t), f)| {
-                    let t_s = t.timestamp() as f64;
-                    let rb = f.as_ref().and_then(|f| f.replace_by);
-                    let eol = f.as_ref().and_then(|f| f.end_of_life);
-                    let at = ProjectionAt {
-                        t_s,
-                        replace_by_s: rb.map(|p| p.t_s),
-                        end_of_life_s: eol.map(|p| p.t_s),
-                    };
-                    ReplayRow {
-                        taken_at: *t,
-                        stage: call.stage,
-                        replace_by: rb.and_then(|p| utc_from_s(p.t_s)),
-                        end_of_life: eol.and_then(|p| utc_from_s(p.t_s)),
-                        replace_by_error_days: replaced_s
-                            .zip(rb)
-                            .map(|(end, p)| (p.t_s - end) / DAY_S),
-                        end_of_life_error_days: replaced_s
-                            .zip(eol)
-                            .map(|(end, p)| (p.t_s - end) / DAY_S),
-                        end_of_life_score: replaced_s.and_then(|end| end_of_life_score(&at, end)),
-                    }
+                .zip(&projections)
+                .map(|((call, t), at)| ReplayRow {
+                    taken_at: *t,
+                    stage: call.stage,
+                    replace_by: at.replace_by_s.and_then(utc_from_s),
+                    end_of_life: at.end_of_life_s.and_then(utc_from_s),
+                    replace_by_error_days: replaced_s
+                        .zip(at.replace_by_s)
+                        .map(|(end, r)| (r - end) / DAY_S),
+                    end_of_life_error_days: replaced_s
+                        .zip(at.end_of_life_s)
+                        .map(|(end, e)| (e - end) / DAY_S),
+                    end_of_life_score: replaced_s.and_then(|end| end_of_life_score(at, end)),
                 })
                 .collect();
-            let record = replaced_s.map(|end| {
-                let projections: Vec<ProjectionAt> = p
-                    .taken_at
-                    .iter()
-                    .zip(&p.forecasts)
-                    .map(|(t, f)| ProjectionAt {
-                        t_s: t.timestamp() as f64,
-                        replace_by_s: f.as_ref().and_then(|f| f.replace_by).map(|p| p.t_s),
-                        end_of_life_s: f.as_ref().and_then(|f| f.end_of_life).map(|p| p.t_s),
-                    })
-                    .collect();
-                track_record(&projections, end)
-            });
+            let record = replaced_s.map(|end| track_record(&projections, end));
             let mean_end_of_life_score = record.and_then(|r| r.mean_end_of_life_score);
             let median_abs_replace_by_error_days =
                 record.and_then(|r| r.median_abs_replace_by_error_days);

@@ -155,15 +155,15 @@ fn resolve_coinciding(ranked: &[&Finding], cage: Option<&Finding>) -> Coinciding
 /// sidebands while the other shows none is named; otherwise the usual margin rule applies.
 fn resolve_by_sidebands(best: &Finding, second: &Finding) -> Coinciding {
     let has = |f: &Finding| f64::from(f.sidebands) >= INNER_ELEMENT_SIDEBANDS.value;
-    let chosen = match (has(best), has(second)) {
-        (true, false) if second.sidebands == 0 => best,
-        (false, true) if best.sidebands == 0 => second,
+    let (chosen, other) = match (has(best), has(second)) {
+        (true, false) if second.sidebands == 0 => (best, second),
+        (false, true) if best.sidebands == 0 => (second, best),
         _ => return Coinciding::No,
     };
-    let other = if std::ptr::eq(chosen, best) {
-        second
+    let (inner, element) = if best.kind == FaultKind::InnerRace {
+        (best, second)
     } else {
-        best
+        (second, best)
     };
     let modulation = |f: &Finding| {
         if f.kind == FaultKind::InnerRace {
@@ -179,16 +179,8 @@ fn resolve_by_sidebands(best: &Finding, second: &Finding) -> Coinciding {
         },
         format!(
             "; the inner-race and 2xBSF combs share lines here (BPFI {:.1} Hz, 2xBSF {:.1} Hz), and the {} family shows its {} sidebands ({}) while the {} family shows none of its {}",
-            if best.kind == FaultKind::InnerRace {
-                best.defect_rate_hz
-            } else {
-                second.defect_rate_hz
-            },
-            if best.kind == FaultKind::InnerRace {
-                second.defect_rate_hz
-            } else {
-                best.defect_rate_hz
-            },
+            inner.defect_rate_hz,
+            element.defect_rate_hz,
             chosen.fault,
             modulation(chosen),
             chosen.sidebands,

@@ -126,6 +126,13 @@ pub enum EolBasis {
     None,
 }
 
+impl EolBasis {
+    /// An end of life that is only a prior (no damage growth of this life projected), never a due date.
+    pub fn is_prior(self) -> bool {
+        matches!(self, Self::SurvivalPrior | Self::FinishedLives)
+    }
+}
+
 fn duration_scale(ctx: &ForecastContext) -> f64 {
     let lube = match ctx.lubrication {
         Lubrication::Oil => rules::OIL_FACTOR.value,

@@ -6,11 +6,11 @@
 
 use chrono::NaiveDate;
 use eframe::egui;
-use egui_plot::{Corner, HLine, Legend, Line, LineStyle, MarkerShape, Plot, PlotPoints, Points};
+use egui_plot::{Corner, HLine, Line, LineStyle, MarkerShape, PlotPoints, Points};
 use spallcast_analysis::forecast::{ProjectionAt, TrackRecord, track_record};
 use spallcast_model::units::unix_s_of_date;
 
-use super::trend_ui::{Y_AXIS_WIDTH, date_label, date_x, day_of};
+use super::trend_ui::{date_label, date_plot, date_x, day_of};
 use crate::model::{BearingHistory, ReadingSummary};
 use crate::palette;
 
@@ -150,50 +150,50 @@ pub fn ui(
         .first()
         .zip(readings.last())
         .map(|(a, b)| [day_of(a), day_of(b)]);
-    Plot::new(("trend-track-record", &history.key))
-        .height(height)
-        // Projections lie on or above the diagonal; the bottom right is where the plot is empty.
-        .legend(Legend::default().position(Corner::RightBottom))
-        .link_axis(link, egui::Vec2b::new(true, false))
-        .y_axis_min_width(Y_AXIS_WIDTH)
-        .x_axis_formatter(|m, _| date_label(m.value))
-        .y_axis_formatter(|m, _| date_label(m.value))
-        .y_axis_label("date projected then")
-        .show(ui, |pui| {
-            if let Some([a, b]) = span {
-                pui.line(
-                    Line::new(DIAGONAL_SERIES, PlotPoints::new(vec![[a, a], [b, b]]))
-                        .color(palette::REPLACEMENT_LINE.gamma_multiply(0.5))
-                        .style(LineStyle::dashed_loose()),
+    // Projections lie on or above the diagonal; the bottom right is where the plot is empty.
+    date_plot(
+        ("trend-track-record", &history.key),
+        height,
+        link,
+        Corner::RightBottom,
+    )
+    .y_axis_formatter(|m, _| date_label(m.value))
+    .y_axis_label("date projected then")
+    .show(ui, |pui| {
+        if let Some([a, b]) = span {
+            pui.line(
+                Line::new(DIAGONAL_SERIES, PlotPoints::new(vec![[a, a], [b, b]]))
+                    .color(palette::REPLACEMENT_LINE.gamma_multiply(0.5))
+                    .style(LineStyle::dashed_loose()),
+            );
+        }
+        pui.points(
+            Points::new(REPLACE_BY_SERIES, PlotPoints::new(replace_by))
+                .color(palette::FORECAST)
+                .shape(MarkerShape::Diamond)
+                .radius(3.5),
+        );
+        pui.points(
+            Points::new(PRIOR_SERIES, PlotPoints::new(prior))
+                .color(palette::END_OF_LIFE.gamma_multiply(0.45))
+                .shape(MarkerShape::Circle)
+                .radius(2.0),
+        );
+        pui.points(
+            Points::new(END_OF_LIFE_SERIES, PlotPoints::new(end_of_life))
+                .color(palette::END_OF_LIFE)
+                .shape(MarkerShape::Square)
+                .radius(3.0),
+        );
+        for life in &summary.lives {
+            if let Some(end) = life.ended {
+                pui.hline(
+                    HLine::new(format!("replaced {end}"), date_x(end))
+                        .color(palette::REPLACEMENT_LINE),
                 );
             }
-            pui.points(
-                Points::new(REPLACE_BY_SERIES, PlotPoints::new(replace_by))
-                    .color(palette::FORECAST)
-                    .shape(MarkerShape::Diamond)
-                    .radius(3.5),
-            );
-            pui.points(
-                Points::new(PRIOR_SERIES, PlotPoints::new(prior))
-                    .color(palette::END_OF_LIFE.gamma_multiply(0.45))
-                    .shape(MarkerShape::Circle)
-                    .radius(2.0),
-            );
-            pui.points(
-                Points::new(END_OF_LIFE_SERIES, PlotPoints::new(end_of_life))
-                    .color(palette::END_OF_LIFE)
-                    .shape(MarkerShape::Square)
-                    .radius(3.0),
-            );
-            for life in &summary.lives {
-                if let Some(end) = life.ended {
-                    pui.hline(
-                        HLine::new(format!("replaced {end}"), date_x(end))
-                            .color(palette::REPLACEMENT_LINE),
-                    );
-                }
-            }
-        });
+        }
+    });
     for life in &summary.lives {
         ui.label(life.sentence());
     }

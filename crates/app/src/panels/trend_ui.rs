@@ -33,7 +33,7 @@ const VELOCITY_KEYS: [&str; 1] = [keys::VELOCITY_RMS_MM_S];
 const DAY_S: f64 = 86_400.0;
 
 /// Width of both plots' value axes, so their time axes line up.
-pub(crate) const Y_AXIS_WIDTH: f32 = 56.0;
+const Y_AXIS_WIDTH: f32 = 56.0;
 
 /// Legend name of the damage index series (the quantity the forecast projects).
 pub const DAMAGE_SERIES: &str = "damage index (forecast basis)";
@@ -97,6 +97,22 @@ pub(crate) fn date_x(d: NaiveDate) -> f64 {
 pub(crate) fn date_label(x: f64) -> String {
     DateTime::from_timestamp((x * DAY_S) as i64, 0)
         .map_or_else(String::new, |t| t.format("%Y-%m-%d").to_string())
+}
+
+/// A plot of the life trend's family: dates on the x axis, linked to the other plots of the view, the
+/// value axis the same width in each so their time axes line up.
+pub(crate) fn date_plot(
+    id: impl egui::AsIdSalt,
+    height: f32,
+    link: egui::Id,
+    legend: Corner,
+) -> Plot<'static> {
+    Plot::new(id)
+        .height(height)
+        .legend(Legend::default().position(legend))
+        .link_axis(link, egui::Vec2b::new(true, false))
+        .y_axis_min_width(Y_AXIS_WIDTH)
+        .x_axis_formatter(|m, _| date_label(m.value))
 }
 
 /// Hover text: the series name, the date and the value.
@@ -256,13 +272,8 @@ impl TrendPanel {
             .filter(|r| history.life_start_for(r.taken_at.date_naive()) == current_life)
             .find_map(|r| Some([day_of(r), r.damage_db?]));
         let late = history.stage_call.as_ref().is_some_and(|c| c.stage >= 4);
-        Plot::new(("trend-db", &history.key))
-            .height(height)
-            // Newest readings are on the right: the legend sits top left, over the oldest.
-            .legend(Legend::default().position(Corner::LeftTop))
-            .link_axis(link, egui::Vec2b::new(true, false))
-            .y_axis_min_width(Y_AXIS_WIDTH)
-            .x_axis_formatter(|m, _| date_label(m.value))
+        // Newest readings are on the right: the legend sits top left, over the oldest.
+        date_plot(("trend-db", &history.key), height, link, Corner::LeftTop)
             .y_axis_label("dB over the life's first reading")
             .label_formatter(|hover| Some(hover_label(hover, "dB")))
             .show(ui, |pui| {
@@ -473,42 +484,43 @@ fn velocity_ui(
     let group = Some(history.iso_group);
     let support = history.iso_support;
     let mut drawn = false;
-    Plot::new(("trend-velocity", &history.key))
-        .height((ui.available_height() - 4.0 - leave.unwrap_or(0.0)).max(100.0))
-        .legend(Legend::default().position(Corner::LeftTop))
-        .link_axis(link, egui::Vec2b::new(true, false))
-        .y_axis_min_width(Y_AXIS_WIDTH)
-        .x_axis_formatter(|m, _| date_label(m.value))
-        .y_axis_label(format!("velocity RMS, {unit}"))
-        .include_y(0.0)
-        .label_formatter(move |hover| Some(hover_label(hover, unit)))
-        .show(ui, |pui| {
-            for seg in segments {
-                pui.points(
-                    Points::new("", PlotPoints::new(seg.clone()))
-                        .color(palette::TREND_COLOURS[0])
-                        .radius(2.5),
-                );
-                pui.line(
-                    Line::new("overall velocity", PlotPoints::new(seg))
-                        .color(palette::TREND_COLOURS[0]),
+    let height = (ui.available_height() - 4.0 - leave.unwrap_or(0.0)).max(100.0);
+    date_plot(
+        ("trend-velocity", &history.key),
+        height,
+        link,
+        Corner::LeftTop,
+    )
+    .y_axis_label(format!("velocity RMS, {unit}"))
+    .include_y(0.0)
+    .label_formatter(move |hover| Some(hover_label(hover, unit)))
+    .show(ui, |pui| {
+        for seg in segments {
+            pui.points(
+                Points::new("", PlotPoints::new(seg.clone()))
+                    .color(palette::TREND_COLOURS[0])
+                    .radius(2.5),
+            );
+            pui.line(
+                Line::new("overall velocity", PlotPoints::new(seg))
+                    .color(palette::TREND_COLOURS[0]),
+            );
+        }
+        if let Some(group) = group {
+            let [ab, bc, cd] = zone_boundaries_mm_s(group, support);
+            for (name, v) in [
+                ("ISO 20816-3 A/B", ab),
+                ("ISO 20816-3 B/C", bc),
+                ("ISO 20816-3 C/D", cd),
+            ] {
+                pui.hline(
+                    HLine::new(name, v * factor)
+                        .color(palette::ZONE_LINE)
+                        .style(LineStyle::dashed_loose()),
                 );
             }
-            if let Some(group) = group {
-                let [ab, bc, cd] = zone_boundaries_mm_s(group, support);
-                for (name, v) in [
-                    ("ISO 20816-3 A/B", ab),
-                    ("ISO 20816-3 B/C", bc),
-                    ("ISO 20816-3 C/D", cd),
-                ] {
-                    pui.hline(
-                        HLine::new(name, v * factor)
-                            .color(palette::ZONE_LINE)
-                            .style(LineStyle::dashed_loose()),
-                    );
-                }
-                drawn = true;
-            }
-        });
+            drawn = true;
+        }
+    });
     drawn
 }

@@ -13,7 +13,7 @@ mod spectra;
 pub use spectra::compute_spectra;
 
 use anyhow::Context as _;
-use spallcast_analysis::forecast::{EolBasis, Forecast, Lubrication, Projection};
+use spallcast_analysis::forecast::{Lubrication, Projection};
 use spallcast_analysis::record::StageRecord;
 use spallcast_analysis::{FaultFactors, MachineGroup, SpectrumEngine, Support};
 use spallcast_model::units::date_of_unix_s;
@@ -396,24 +396,11 @@ impl PlantSource for StoreSource {
                 .as_ref()
                 .map(|r| r.call.damage_index_db)
                 .filter(|d| d.is_finite());
-            let projected = |pick: fn(&Forecast) -> Option<Projection>| {
-                record
-                    .as_ref()
-                    .and_then(|r| r.forecast.as_ref())
-                    .and_then(pick)
-                    .and_then(|p| date_of_unix_s(p.t_s))
-            };
-            let replace_by = projected(|f| f.replace_by);
-            let end_of_life = projected(|f| f.end_of_life);
-            let end_of_life_is_prior = record
-                .as_ref()
-                .and_then(|r| r.forecast.as_ref())
-                .is_some_and(|f| {
-                    matches!(
-                        f.end_of_life_basis,
-                        EolBasis::SurvivalPrior | EolBasis::FinishedLives
-                    )
-                });
+            let forecast = record.as_ref().and_then(|r| r.forecast.as_ref());
+            let projected = |p: Option<Projection>| p.and_then(|p| date_of_unix_s(p.t_s));
+            let replace_by = projected(forecast.and_then(|f| f.replace_by));
+            let end_of_life = projected(forecast.and_then(|f| f.end_of_life));
+            let end_of_life_is_prior = forecast.is_some_and(|f| f.end_of_life_basis.is_prior());
             let baseline = meta.baseline;
             readings.push(ReadingSummary {
                 id: meta.id,
