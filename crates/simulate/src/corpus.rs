@@ -234,7 +234,7 @@ fn corpus_reading(index: usize, seed: u64) -> Result<CorpusReading, SimError> {
     clippy::too_many_arguments,
     reason = "one plain synthesis step with its parameters spelled out"
 )]
-fn add_gear_mesh(
+pub(crate) fn add_gear_mesh(
     x: &mut [f64],
     fs: f64,
     shaft_hz: f64,
@@ -261,7 +261,7 @@ fn add_gear_mesh(
 }
 
 /// Poisson-arriving knocks, each ringing one of `modes_hz` (chosen at random) with a random amplitude.
-fn add_knocks(
+pub(crate) fn add_knocks(
     x: &mut [f64],
     fs: f64,
     rate_hz: f64,

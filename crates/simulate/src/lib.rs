@@ -23,6 +23,7 @@
 mod corpus;
 mod demo;
 mod error;
+mod history;
 mod model;
 mod progression;
 mod signal;
@@ -34,6 +35,7 @@ pub use demo::{
     shift_dates,
 };
 pub use error::SimError;
+pub use history::{HardMachine, hard_machine};
 pub use model::{
     BearingFactors, Condition, FaultKind, Lubrication, MachineParams, Resonance, Stage,
     StructuralMode,
