@@ -27,6 +27,7 @@ use crate::envelope::{
 use crate::findings::{SearchParams, family_reach_hz, score_family};
 use crate::kinematics::{FaultFrequencies, FaultKind};
 use crate::spectrum::{PowerSpectrum, Spectrum, SpectrumEngine};
+use crate::stage::rules::HIGH_BAND_MIN_HZ;
 
 /// How the demodulation band was chosen, for the JSON document and the report.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize, Default)]
@@ -58,6 +59,12 @@ pub struct BandChoice {
     /// documents written before it existed.
     #[serde(default)]
     pub present_bands: usize,
+    /// The named family's strongest score, dB, among the candidate bands lying wholly below the
+    /// ultrasonic band (upper edge at most [`HIGH_BAND_MIN_HZ`]): whether the defect rings the
+    /// bearing's structural resonances (stage 2) or shows only in the ultrasonic range (stage 1).
+    /// `None` when no candidate lies below it, and in documents written before it existed.
+    #[serde(default)]
+    pub below_ultrasonic_db: Option<f64>,
     /// Plain-language reason.
     pub reason: String,
 }
@@ -120,26 +127,39 @@ pub(crate) fn tonal_fraction(psd: &PowerSpectrum, lo_hz: f64, fs: f64, shaft_hz:
     if total > 0.0 { tonal / total } else { 0.0 }
 }
 
+/// Each family's score in an envelope spectrum, dB, in [`FaultKind::ALL`] order (−∞ where it
+/// cannot be scored).
+fn family_scores(ses: &Spectrum, freqs: &FaultFrequencies, search: &SearchParams) -> [f64; 4] {
+    FaultKind::ALL.map(|k| {
+        score_family(
+            ses,
+            freqs.defect_rate_hz(k),
+            freqs.sideband_spacing_hz(k),
+            freqs.shaft_hz,
+            search,
+        )
+        .map_or(f64::NEG_INFINITY, |s| s.score_db)
+    })
+}
+
+/// The best of [`family_scores`]: (kind, score dB).
+fn best_of(scores: &[f64; 4]) -> (FaultKind, f64) {
+    FaultKind::ALL
+        .iter()
+        .zip(scores)
+        .filter(|(_, s)| s.is_finite())
+        .map(|(&k, &s)| (k, s))
+        .max_by(|a, b| a.1.total_cmp(&b.1))
+        .unwrap_or((FaultKind::OuterRace, 0.0))
+}
+
 /// Best family score in an envelope spectrum: (kind, score dB).
 pub(crate) fn best_family(
     ses: &Spectrum,
     freqs: &FaultFrequencies,
     search: &SearchParams,
 ) -> (FaultKind, f64) {
-    FaultKind::ALL
-        .iter()
-        .filter_map(|&k| {
-            score_family(
-                ses,
-                freqs.defect_rate_hz(k),
-                freqs.sideband_spacing_hz(k),
-                freqs.shaft_hz,
-                search,
-            )
-            .map(|s| (k, s.score_db))
-        })
-        .max_by(|a, b| a.1.total_cmp(&b.1))
-        .unwrap_or((FaultKind::OuterRace, 0.0))
+    best_of(&family_scores(ses, freqs, search))
 }
 
 /// The highest frequency any family's score reads in an envelope spectrum of line step `df_hz`.
@@ -155,6 +175,36 @@ fn scoring_reach_hz(freqs: &FaultFrequencies, df_hz: f64, search: &SearchParams)
             )
         })
         .fold(0.0, f64::max)
+}
+
+/// The strongest score of `kind` (or of a family whose comb it shares) among the candidate bands
+/// lying wholly below the ultrasonic range (upper edge at most [`HIGH_BAND_MIN_HZ`]).
+fn below_ultrasonic(
+    cands: &[([f64; 2], &'static str, f64)],
+    band_scores: &[[f64; 4]],
+    kind: FaultKind,
+    freqs: &FaultFrequencies,
+) -> Option<f64> {
+    cands
+        .iter()
+        .zip(band_scores)
+        .filter(|((b, _, _), _)| b[1] <= HIGH_BAND_MIN_HZ.value)
+        .flat_map(|(_, sc)| {
+            FaultKind::ALL
+                .iter()
+                .zip(sc)
+                .filter(|(k, _)| {
+                    same_lines(
+                        **k,
+                        freqs.defect_rate_hz(**k),
+                        kind,
+                        freqs.defect_rate_hz(kind),
+                    )
+                })
+                .map(|(_, s)| *s)
+        })
+        .filter(|s| s.is_finite())
+        .reduce(f64::max)
 }
 
 /// Chooses the demodulation band (see the module notes). Returns the choice, the prepared signal and
@@ -216,18 +266,26 @@ pub(crate) fn choose_band(
     let reach = scoring_reach_hz(freqs, sig.freq_step_hz(), search);
     let mut best: Option<(usize, FaultKind, f64)> = None;
     let mut per_band: Vec<(FaultKind, f64)> = Vec::with_capacity(cands.len());
+    let mut band_scores: Vec<[f64; 4]> = Vec::with_capacity(cands.len());
     for (i, (band, _, _)) in cands.iter().enumerate() {
         let seen = cands[..i]
             .iter()
             .position(|(b, _, _)| (b[0] - band[0]).abs() < 1e-6 && (b[1] - band[1]).abs() < 1e-6)
-            .and_then(|j| per_band.get(j).copied());
-        let scored = match seen {
-            Some(s) => Some(s),
+            .and_then(|j| band_scores.get(j).copied());
+        let scores = match seen {
+            Some(s) => s,
             None => ranking_envelope_spectrum(engine, &sig, band[0], band[1], cap, reach)
                 .ok()
-                .map(|ses| best_family(&ses, freqs, search)),
+                .map_or([f64::NEG_INFINITY; 4], |ses| {
+                    family_scores(&ses, freqs, search)
+                }),
         };
-        let Some((kind, score)) = scored.filter(|(_, s)| *s > f64::NEG_INFINITY) else {
+        band_scores.push(scores);
+        let Some((kind, score)) = scores
+            .iter()
+            .any(|s| s.is_finite())
+            .then(|| best_of(&scores))
+        else {
             per_band.push((FaultKind::OuterRace, f64::NEG_INFINITY));
             continue;
         };
@@ -273,6 +331,7 @@ pub(crate) fn choose_band(
         .enumerate()
         .filter(|(j, (_, sc))| *j != i && *sc >= PRESENT_DB.value)
         .count();
+    let below_ultrasonic_db = below_ultrasonic(&cands, &band_scores, kind, freqs);
     let reason = format!(
         "of {} candidate bands (the kurtogram's 3 most impulsive, a grid of 1/8- and 1/16-rate cells, \
          1.5-10 kHz and that band scaled to the sample rate), this one shows a fault family most \
@@ -306,6 +365,7 @@ pub(crate) fn choose_band(
             lines_removed: separate,
             corroborating_bands: corroborating,
             present_bands,
+            below_ultrasonic_db,
             reason,
         },
         sig,

@@ -152,7 +152,7 @@ pub struct StageIndicators {
 /// Version of the diagnosis document and of the stage indicators taken from it. Change it whenever
 /// either changes (a new indicator, a new field, a changed computation): stored readings of an older
 /// version are then analysed again when a database is opened.
-pub const ANALYSIS_VERSION: &str = "spallcast-analysis-5";
+pub const ANALYSIS_VERSION: &str = "spallcast-analysis-6";
 
 /// Result of [`diagnose`]. Serialises to the stable JSON document.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]

@@ -94,13 +94,26 @@ pub(crate) fn evaluate(r: &ReadingIndicators, baseline: &Baseline, history: &His
     let rise = rules::RISE_DB.value;
     let mut limits = Vec::new();
     let tone = best_tone(r);
-    // Tones demodulated from an ultrasonic band while the resonance region is quiet and the
-    // waveform is not impulsive: the damage shows only at ultrasonic frequencies (stage 1).
+    // Tones demodulated from a band reaching the ultrasonic range while the resonance region is
+    // quiet: when the same family does not show in any candidate band below the ultrasonic range, the
+    // damage does not yet ring the bearing's structural resonances (stage 1; rule
+    // `ultrasonic_only_below_db`). Records without that per-band score fall back to the band's own edge
+    // and the waveform's kurtosis.
+    let quiet = !at_least(rel.resonance_band_db, rules::RESONANCE_STAGE2_DB.value);
     let ultrasonic_only = tone.is_some()
-        && r.envelope_band_hz
-            .is_some_and(|b| b[0] >= rules::HIGH_BAND_MIN_HZ.value)
-        && !at_least(rel.resonance_band_db, rules::RESONANCE_STAGE2_DB.value)
-        && !at_least(r.kurtosis, rules::GENERIC_STAGE2_KURTOSIS.value);
+        && quiet
+        && match r.below_ultrasonic_tone_db {
+            Some(below) => {
+                r.envelope_band_hz
+                    .is_some_and(|b| b[1] > rules::HIGH_BAND_MIN_HZ.value)
+                    && below < rules::ULTRASONIC_ONLY_BELOW_DB.value
+            }
+            None => {
+                r.envelope_band_hz
+                    .is_some_and(|b| b[0] >= rules::HIGH_BAND_MIN_HZ.value)
+                    && !at_least(r.kurtosis, rules::GENERIC_STAGE2_KURTOSIS.value)
+            }
+        };
     let best = if ultrasonic_only { None } else { tone };
     let best_loc = best.map(|(i, _)| Location::KINEMATIC[i]);
 
@@ -293,8 +306,19 @@ pub(crate) fn evaluate(r: &ReadingIndicators, baseline: &Baseline, history: &His
     if let (true, Some((i, t))) = (ultrasonic_only, tone) {
         let loc = Location::KINEMATIC[i];
         let band = r.envelope_band_hz.unwrap_or_default();
+        let below = r.below_ultrasonic_tone_db.map_or_else(
+            || "; resonance region and kurtosis unchanged".to_owned(),
+            |d| {
+                format!(
+                    "; in no band below {:.0} kHz (at most {:.1} dB there, under {:.0} dB) and the resonance region unchanged",
+                    rules::HIGH_BAND_MIN_HZ.value / 1000.0,
+                    d.max(0.0),
+                    rules::ULTRASONIC_ONLY_BELOW_DB.value
+                )
+            },
+        );
         let mut evidence = vec![format!(
-            "{} tone ({}) {:.1} dB with {} harmonics only in the envelope of the ultrasonic band {:.0}-{:.0} kHz; resonance region and kurtosis unchanged.",
+            "{} tone ({}) {:.1} dB with {} harmonics in the envelope of the {:.1}-{:.1} kHz band{below}: ultrasonic only.",
             loc.tone_name(),
             loc.name(),
             t.envelope_score_db,

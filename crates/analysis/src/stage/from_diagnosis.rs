@@ -74,6 +74,11 @@ impl ReadingIndicators {
         let mut out = ReadingIndicators {
             tones,
             envelope_band_hz: Some(d.demodulation_band_hz),
+            below_ultrasonic_tone_db: FaultKind::ALL
+                .iter()
+                .any(|&k| backed(k))
+                .then_some(d.band_choice.below_ultrasonic_db)
+                .flatten(),
             ..ReadingIndicators::default()
         };
         for def in INDICATORS {

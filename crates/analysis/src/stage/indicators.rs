@@ -51,6 +51,11 @@ pub struct ReadingIndicators {
     /// The band demodulated for the envelope spectrum, Hz (tones found only in an ultrasonic band
     /// are stage-1 evidence).
     pub envelope_band_hz: Option<[f64; 2]>,
+    /// The named defect family's strongest envelope score, dB, among the candidate demodulation bands
+    /// lying wholly below the ultrasonic band: tones that show only above it are stage-1 evidence.
+    /// `None` when no location is named, no candidate lies below, or the record predates it.
+    #[serde(default)]
+    pub below_ultrasonic_tone_db: Option<f64>,
 }
 
 /// Scalar names under which [`ReadingIndicators`] are stored per reading (see
@@ -83,6 +88,8 @@ pub mod keys {
     pub const ENVELOPE_BAND_LO_HZ: &str = "stage.envelope_band_lo_hz";
     /// Upper edge of the demodulated band, Hz.
     pub const ENVELOPE_BAND_HI_HZ: &str = "stage.envelope_band_hi_hz";
+    /// The named family's envelope score in the bands below the ultrasonic band, dB.
+    pub const BELOW_ULTRASONIC_TONE_DB: &str = "stage.below_ultrasonic_tone_db";
     /// The stage indicators a trend view offers, with their labels, in display order. A new stage
     /// indicator adds its line here.
     pub const TRENDED: [(&str, &str); 9] = [
@@ -304,6 +311,10 @@ impl ReadingIndicators {
             keys::ENVELOPE_BAND_HI_HZ,
             self.envelope_band_hz.map(|b| b[1]),
         );
+        put(
+            keys::BELOW_ULTRASONIC_TONE_DB,
+            self.below_ultrasonic_tone_db,
+        );
         if let Some(tones) = &self.tones {
             out.insert(keys::TONES_PRESENT.to_owned(), 1.0);
             for (loc, t) in Location::KINEMATIC.iter().zip(tones) {
@@ -343,6 +354,7 @@ impl ReadingIndicators {
             envelope_band_hz: get(keys::ENVELOPE_BAND_LO_HZ)
                 .zip(get(keys::ENVELOPE_BAND_HI_HZ))
                 .map(|(lo, hi)| [lo, hi]),
+            below_ultrasonic_tone_db: get(keys::BELOW_ULTRASONIC_TONE_DB),
             ..ReadingIndicators::default()
         };
         for def in INDICATORS {
@@ -514,6 +526,7 @@ mod tests {
                 ToneEvidence::default(),
             ]),
             envelope_band_hz: Some([2000.0, 6000.0]),
+            below_ultrasonic_tone_db: Some(4.5),
         };
         let s = r.to_scalars();
         assert!(!s.contains_key(keys::HIGH_BAND_RMS_G));

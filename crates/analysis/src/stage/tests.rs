@@ -25,6 +25,7 @@ fn healthy() -> ReadingIndicators {
             }; 4],
         ),
         envelope_band_hz: Some([2000.0, 8000.0]),
+        below_ultrasonic_tone_db: None,
     }
 }
 
@@ -84,6 +85,31 @@ fn a_flat_healthy_life_stays_at_stage_zero() {
         calls
             .iter()
             .all(|c| c.limits.is_empty() && c.confidence >= 0.85)
+    );
+}
+
+// Stage 1 is damage seen only above the structural resonances (common practice, no source; reference
+// sheet 6.1): an outer-race family demodulated from a band reaching past 20 kHz is stage 1 while it
+// scores under the tone threshold in every band below 20 kHz, and stage 2 once it shows there too,
+// whatever the demodulation band's lower edge.
+#[test]
+fn tones_only_above_the_resonances_are_stage_one() {
+    let ultrasonic = |below: f64| {
+        let mut r = with_outer(healthy(), 16.0, 3, 0, 0);
+        r.envelope_band_hz = Some([12_800.0, 38_400.0]);
+        r.below_ultrasonic_tone_db = Some(below);
+        r
+    };
+    let mut items = vec![healthy(), healthy(), healthy()];
+    items.extend([ultrasonic(4.0), ultrasonic(4.0)]);
+    items.extend([ultrasonic(15.0), ultrasonic(15.0)]);
+    let calls = assess_life(&life(items), &StageOptions::default());
+    let stages: Vec<u8> = calls.iter().map(|c| c.stage).collect();
+    assert_eq!(stages, vec![0, 0, 0, 1, 1, 2, 2], "{calls:#?}");
+    let e1 = calls[3].evidence.join(" ");
+    assert!(
+        e1.contains("ultrasonic only") && e1.contains("below 20 kHz"),
+        "{e1}"
     );
 }
 
