@@ -32,7 +32,7 @@ use crate::error::{Doing as _, PipelineError, Result};
 /// Version of the stage logic recorded with every stored call (2: each record carries the life's
 /// location as it stood at that reading; 3: stage 1 needs the defect family absent from every band
 /// below the ultrasonic range).
-pub const STAGE_VERSION: &str = "spallcast-stage-3";
+pub const STAGE_VERSION: &str = "spallcast-stage-4";
 
 /// The assessed history of one measurement point over one bearing life.
 #[derive(Debug, Clone, Serialize)]

@@ -306,8 +306,10 @@ fn score_of(actual: f64, predicted: f64) -> f64 {
 }
 
 // Density invariance: each run imported at every converted snapshot and at every 5th gives the same
-// stage at the shared readings. Achieved 93.7 % over the six runs (the issue asks 95 %; the misses
-// are at the fast ends of the runs, where the denser data sees the stage-4 level a reading sooner).
+// stage at the shared readings at least 95 % of the time. Measured 96.5 % (275 of 285) over the six
+// runs with the share-based hold (`hold_share`), 93.7 % with the former highest-reading hold; the
+// misses left are at the fast ends of the runs, where a damage index at the stage-4 level (12 dB)
+// differs by a few tenths of a dB between the two baselines.
 #[test]
 fn pronostia_stage_calls_do_not_depend_on_reading_density() {
     let Some(lives) = all_lives() else {
@@ -349,7 +351,7 @@ fn pronostia_stage_calls_do_not_depend_on_reading_density() {
         same += s;
     }
     println!("| all | {n} | {same} | {:.3} |", same as f64 / n as f64);
-    assert!(same as f64 >= 0.93 * n as f64, "{same} of {n}");
+    assert!(same as f64 >= 0.95 * n as f64, "{same} of {n}");
 }
 
 // Leave-one-out on the six learning runs: for each held-out run the degradation prior (slope, end-of-

@@ -87,6 +87,8 @@ pub struct StageOptions {
     pub confirm_share: f64,
     /// Trailing hold window (hysteresis) as a share of the observed span.
     pub hold_fraction: f64,
+    /// Share of the readings in the hold window that must show a stage for it to be held.
+    pub hold_share: f64,
 }
 
 impl Default for StageOptions {
@@ -96,6 +98,7 @@ impl Default for StageOptions {
             confirm_fraction: rules::CONFIRM_FRACTION.value,
             confirm_share: rules::CONFIRM_SHARE.value,
             hold_fraction: rules::HOLD_FRACTION.value,
+            hold_share: rules::HOLD_SHARE.value,
         }
     }
 }
@@ -152,9 +155,10 @@ fn window_start(readings: &[LifeReading], i: usize, fraction: f64) -> usize {
 /// The baseline grows with the life (the first `baseline_fraction` of the span seen so far) until
 /// damage is first confirmed, then stays as it was. A stage is confirmed, and becomes the floor of
 /// later calls, when at least `confirm_share` of the readings in the trailing window (a
-/// `confirm_fraction` of the span, at least this reading and the one before) show it. A stage shown
-/// by any reading within the trailing `hold_fraction` of the span is held until that window has
-/// passed it (hysteresis in time).
+/// `confirm_fraction` of the span, at least this reading and the one before) show it. A reading is
+/// held one stage up when, among the readings within the trailing `hold_fraction` of the span at its
+/// stage or above (this reading included), at least `hold_share` show the next stage (hysteresis in
+/// time): a share, not the window's highest reading, so that denser data does not hold more.
 #[allow(
     clippy::too_many_lines,
     reason = "baseline, confirmation, hold and evidence of one call read best together"
@@ -202,16 +206,25 @@ pub fn assess_life(readings: &[LifeReading], options: &StageOptions) -> Vec<Stag
         if floor > 0 && frozen.is_none() && !marked {
             frozen = Some(base_idx.clone());
         }
-        // Hold: the highest stage shown within the trailing window proper (no extension to the
-        // reading before, so a lone spike on a sparse route is not carried to the next reading).
+        // Hold over the trailing window proper (no extension to the reading before, so a lone
+        // spike on a sparse route is not carried to the next reading).
         let t_from =
             reading.t_s - options.hold_fraction.max(0.0) * (reading.t_s - readings[0].t_s).max(0.0);
-        let held = calls[..i]
+        let in_hold: Vec<u8> = calls[..i]
             .iter()
             .filter(|c| c.t_s >= t_from)
             .map(|c| c.raw_stage)
-            .max()
-            .unwrap_or(0);
+            .chain(std::iter::once(raw.stage))
+            .collect();
+        // One stage up at most: among the window's readings at this reading's stage or above, the
+        // share that show the next stage.
+        let level = in_hold.iter().filter(|&&w| w >= raw.stage).count() as f64;
+        let above = in_hold.iter().filter(|&&w| w > raw.stage).count() as f64;
+        let held = if raw.stage < 4 && above > 0.0 && above >= options.hold_share * level {
+            raw.stage + 1
+        } else {
+            raw.stage
+        };
         let stage = raw.stage.max(floor).max(held);
         let mut evidence = raw.evidence;
         let mut confidence = raw.confidence;
@@ -228,7 +241,8 @@ pub fn assess_life(readings: &[LifeReading], options: &StageOptions) -> Vec<Stag
                 ));
             } else {
                 evidence.push(format!(
-                    "Held at stage {stage}: a reading within the last {:.0} % of the life seen so far showed it (hysteresis in time).",
+                    "Held at stage {stage}: at least {:.0} % of the readings at this stage or above within the last {:.0} % of the life seen so far showed it (hysteresis in time).",
+                    100.0 * options.hold_share,
                     100.0 * options.hold_fraction
                 ));
             }

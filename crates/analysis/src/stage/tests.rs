@@ -343,6 +343,28 @@ fn neighbouring_readings_do_not_flip_between_three_and_four() {
     assert!(flips > 5, "without the hold the life flips ({flips})");
 }
 
+// A lone spike in dense data is not carried to the quiet readings after it (rule `hold_share`): the
+// hold is a share of the window's readings, not its highest one, so ten readings a minute hold no
+// more than one a minute would. The former highest-reading hold lifted the next readings to the
+// spike's stage.
+#[test]
+fn a_lone_spike_in_dense_data_is_not_held() {
+    let mut dbs = vec![0.0; 300];
+    dbs[250] = 15.0;
+    let readings = rig_life(&dbs, 10.0);
+    let calls = assess_life(&readings, &StageOptions::default());
+    assert_eq!(
+        calls[250].raw_stage, 4,
+        "the spike reads at the stage-4 level"
+    );
+    // The hold window at reading 251 (2 % of 2,510 s) holds readings 247-251.
+    assert!(
+        calls[251..].iter().all(|c| c.stage == 0),
+        "{:?}",
+        calls[245..260].iter().map(|c| c.stage).collect::<Vec<_>>()
+    );
+}
+
 // Density invariance: one noisy life at every reading and at every 5th gives the same stage at the
 // shared readings at least 95 % of the time (every window is in time, not in readings).
 #[test]
