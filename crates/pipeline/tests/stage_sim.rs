@@ -529,8 +529,9 @@ fn hardened_histories_are_staged() {
         100.0 * near as f64 / n as f64,
         faulted.len()
     );
-    // Floors as measured on 2026-12-05 (exact 238/290, within one 284/290, lead 12/12, one healthy
-    // reading flagged). The flagged one is a known miss: hard-healthy-3 month 7, where a few random
+    // Measured on 2026-12-05: exact 239/290, within one 285/290 (98.3 %; 284 before impacting
+    // without a defect family stopped counting as stage 2 where fault frequencies are known), lead
+    // 12/12, one healthy reading flagged. The flagged one is a known miss: hard-healthy-3 month 7, where a few random
     // knocks raise the floor between tones by about 9 dB in that one reading and it is called stage
     // 3; the reading before and after are stage 0. Allowed once here, not silently: raising this
     // bound needs a note.
@@ -540,5 +541,5 @@ fn hardened_histories_are_staged() {
     );
     assert_eq!(two_months, faulted.len(), "stage-2+ lead of two months");
     assert!(exact as f64 >= 0.8 * n as f64, "exact: {exact} of {n}");
-    assert!(near as f64 >= 0.97 * n as f64, "within one: {near} of {n}");
+    assert!(near as f64 >= 0.98 * n as f64, "within one: {near} of {n}");
 }

@@ -263,11 +263,15 @@ pub(crate) fn evaluate(r: &ReadingIndicators, baseline: &Baseline, history: &His
         };
     }
 
-    // Stage 2: envelope defect tones, or (generic) ringing resonances with impulsive statistics.
+    // Stage 2: envelope defect tones, or (generic, only where no defect tones can be checked)
+    // ringing resonances with impulsive statistics. Where the bearing's fault frequencies are known,
+    // stage 2 is the resonances ringing *at a defect rate*: impacting with no defect family in the
+    // envelope comes from something else (knocks, looseness, the process) and is noted at stage 0.
     let mut s2: Vec<String> = Vec::new();
     s2.extend(tone_sentence);
     let resonance_up = at_least(rel.resonance_band_db, rise) || at_least(rel.accel_rms_db, rise);
-    if resonance_up && at_least(r.kurtosis, rules::GENERIC_STAGE2_KURTOSIS.value) {
+    let impacting = resonance_up && at_least(r.kurtosis, rules::GENERIC_STAGE2_KURTOSIS.value);
+    if impacting && r.tones.is_none() {
         s2.push(format!(
             "Resonance region {} and kurtosis {:.1} (impacting).",
             rel.resonance_band_db.or(rel.accel_rms_db).map_or_else(
@@ -365,6 +369,16 @@ pub(crate) fn evaluate(r: &ReadingIndicators, baseline: &Baseline, history: &His
         evidence.push(format!(
             "Overall velocity in ISO 20816-3 zone {} without bearing evidence: look for another cause (balance, alignment, looseness).",
             zone_letter(zone)
+        ));
+    }
+    if impacting && best.is_none() {
+        evidence.push(format!(
+            "Resonance region {} and kurtosis {:.1}, but no defect family in the envelope at this bearing's fault frequencies: impacts from another source (knocks, looseness, the process), not staged as bearing damage.",
+            rel.resonance_band_db.or(rel.accel_rms_db).map_or_else(
+                || "-".to_owned(),
+                |d| format!("{} over baseline", fmt_db(d))
+            ),
+            r.kurtosis.unwrap_or(0.0)
         ));
     }
     let confidence = 0.9 - 0.15 * limits.len() as f64;

@@ -228,8 +228,8 @@ pub const GENERIC_STAGE2_KURTOSIS: Rule = Rule {
     id: "generic_stage2_kurtosis",
     value: 4.0,
     unit: "kurtosis",
-    meaning: "without defect tones: resonance region risen and kurtosis above this = early impacting damage (stage 2)",
-    source: "common practice, no source (Gaussian noise has kurtosis 3)",
+    meaning: "where no defect tones can be checked (no fault frequencies for the bearing): resonance region risen and kurtosis above this = early impacting damage (stage 2); where they can, stage 2 needs a defect family in the envelope (the stage's definition: the resonances ring at a defect rate), and impacting without one is only noted",
+    source: "common practice, no source (Gaussian noise has kurtosis 3); restricted to bearings without fault frequencies on the stage definition, checked on the hardened simulator histories (within one stage 97.9 % -> 98.3 %, exact 238 -> 239 of 290, 2-month lead still 12 of 12) and the basic histories (unchanged); PRONOSTIA is staged without tones, so it keeps the generic rule",
 };
 
 /// Family score below which a defect family counts as absent from every band under the ultrasonic range.

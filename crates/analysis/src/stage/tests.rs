@@ -66,6 +66,40 @@ fn scaled(mut r: ReadingIndicators, rms: f64, floor: f64, resonance: f64) -> Rea
     r
 }
 
+// Stage 2 is the bearing's resonances ringing at a defect rate (the four-stage model, common
+// practice, no source). Impacting (resonance region up, high kurtosis) with the fault frequencies
+// known and no defect family in the envelope (knocks, looseness) stays stage 0, with a note; the same
+// readings of a bearing without fault frequencies keep the generic stage-2 call.
+#[test]
+fn impacting_without_a_defect_family_is_not_stage_two() {
+    let mut knocked = scaled(healthy(), 1.0, 1.0, 2.5);
+    knocked.kurtosis = Some(40.0);
+    let with_tones = life(vec![
+        healthy(),
+        healthy(),
+        healthy(),
+        healthy(),
+        knocked.clone(),
+    ]);
+    let call = &assess_life(&with_tones, &StageOptions::default())[4];
+    assert_eq!(call.raw_stage, 0, "{:?}", call.evidence);
+    assert!(
+        call.evidence.iter().any(|e| e.contains("another source")),
+        "{:?}",
+        call.evidence
+    );
+    let untoned = |mut r: ReadingIndicators| {
+        r.tones = None;
+        r
+    };
+    let without: Vec<ReadingIndicators> = [healthy(), healthy(), healthy(), healthy(), knocked]
+        .into_iter()
+        .map(untoned)
+        .collect();
+    let call = &assess_life(&life(without), &StageOptions::default())[4];
+    assert_eq!(call.raw_stage, 2, "{:?}", call.evidence);
+}
+
 #[test]
 fn a_flat_healthy_life_stays_at_stage_zero() {
     // Small month-to-month scatter (±1 dB) is not damage.
